@@ -1,0 +1,266 @@
+//! Fourier grid: plane waves on the periodic box [start, stop).
+//!
+//! Grid points x_j = start + j·dx, j = 0..n−1, dx = (stop − start)/n. Wave numbers
+//! k_p = 2π·fftfreq(n, dx) in numpy order; for even n the Nyquist mode p = n/2
+//! carries k = −π/dx and, in every real operator built here, enters through
+//! cos(π j) = (−1)^j so that real symmetric matrices stay real symmetric.
+//!
+//! The orthonormal basis is the set of periodic sinc (discrete variable)
+//! functions centred on the grid points, so a state's coefficients are
+//! c_j = ψ(x_j)·sqrt(dx). The kinetic operator is exact in k (Fourier-grid
+//! Hamiltonian: Kosloff; Marston & Balint-Kurti 1989), the potential is diagonal.
+
+use super::Basis;
+use crate::error::{check_finite, InputError};
+use faer::{Mat, MatRef};
+use num_complex::Complex64;
+use rayon::prelude::*;
+use rustfft::{Fft, FftPlanner};
+use std::f64::consts::PI;
+use std::sync::Arc;
+
+/// Largest grid accepted (2^28 points: 4 GiB per complex vector).
+pub const MAX_POINTS: usize = 1 << 28;
+
+/// A periodic grid with its FFT plans (made once, shared by every operator on it).
+#[derive(Clone)]
+pub struct FourierGrid {
+    start: f64,
+    stop: f64,
+    dx: f64,
+    x: Vec<f64>,
+    k: Vec<f64>,
+    forward: Arc<dyn Fft<f64>>,
+    inverse: Arc<dyn Fft<f64>>,
+}
+
+impl std::fmt::Debug for FourierGrid {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "FourierGrid(start={}, stop={}, points={})", self.start, self.stop, self.x.len())
+    }
+}
+
+impl FourierGrid {
+    /// A grid of `points` points on [start, stop). Requires finite bounds, stop > start
+    /// and 2 ≤ points ≤ 2^28.
+    pub fn new(start: f64, stop: f64, points: usize) -> Result<Self, InputError> {
+        if !start.is_finite() {
+            return Err(InputError::range("start", "a finite number", start));
+        }
+        if !stop.is_finite() || stop <= start {
+            return Err(InputError::range("stop", format!("a finite number > start ({start})"), stop));
+        }
+        if !(2..=MAX_POINTS).contains(&points) {
+            return Err(InputError::range("points", format!("an integer in [2, {MAX_POINTS}]"), points));
+        }
+        let n = points;
+        let dx = (stop - start) / n as f64;
+        if !(dx > 0.0) {
+            return Err(InputError::range("points", "small enough that (stop - start)/points > 0", points));
+        }
+        let x = (0..n).map(|j| start + j as f64 * dx).collect();
+        let k = (0..n).map(|p| wavenumber(p, n, dx)).collect();
+        let mut planner = FftPlanner::new();
+        let forward = planner.plan_fft_forward(n);
+        let inverse = planner.plan_fft_inverse(n);
+        Ok(FourierGrid { start, stop, dx, x, k, forward, inverse })
+    }
+
+    pub fn start(&self) -> f64 {
+        self.start
+    }
+    pub fn stop(&self) -> f64 {
+        self.stop
+    }
+    pub fn dx(&self) -> f64 {
+        self.dx
+    }
+    pub fn len(&self) -> usize {
+        self.x.len()
+    }
+    pub fn is_empty(&self) -> bool {
+        self.x.is_empty()
+    }
+    /// Grid points x_j.
+    pub fn x(&self) -> &[f64] {
+        &self.x
+    }
+    /// Wave numbers k_p (numpy `fftfreq` order, times 2π).
+    pub fn k(&self) -> &[f64] {
+        &self.k
+    }
+    /// The forward FFT plan (unnormalised, e^{−ikx}).
+    pub fn forward(&self) -> &Arc<dyn Fft<f64>> {
+        &self.forward
+    }
+    /// The inverse FFT plan (unnormalised, e^{+ikx}).
+    pub fn inverse(&self) -> &Arc<dyn Fft<f64>> {
+        &self.inverse
+    }
+    /// Whether n is even, i.e. the grid has a Nyquist mode.
+    pub fn has_nyquist(&self) -> bool {
+        self.x.len() % 2 == 0
+    }
+
+    /// First column of a real circulant matrix whose eigenvalue on mode p is `symbol[p]`
+    /// (symbol must be even in k): t_m = (1/n) Σ_p symbol_p e^{i k_p m dx}.
+    pub fn circulant_column(&self, symbol: impl Fn(f64) -> f64) -> Vec<f64> {
+        let n = self.len();
+        let mut buf: Vec<Complex64> = self.k.iter().map(|&k| Complex64::new(symbol(k), 0.0)).collect();
+        self.inverse.process(&mut buf);
+        buf.iter().map(|z| z.re / n as f64).collect()
+    }
+
+    /// First column of the spectral first-derivative matrix with the Nyquist mode
+    /// removed (so it is real antisymmetric): d_m = (1/n) Σ_{p≠n/2} i k_p e^{i k_p m dx}.
+    pub fn derivative_column(&self) -> Vec<f64> {
+        let n = self.len();
+        let nyq = if self.has_nyquist() { Some(n / 2) } else { None };
+        let mut buf: Vec<Complex64> = self
+            .k
+            .iter()
+            .enumerate()
+            .map(|(p, &k)| if Some(p) == nyq { Complex64::new(0.0, 0.0) } else { Complex64::new(0.0, k) })
+            .collect();
+        self.inverse.process(&mut buf);
+        buf.iter().map(|z| z.re / n as f64).collect()
+    }
+
+    /// Dense matrix from a circulant first column c: A_jl = c[(j − l) mod n].
+    pub fn circulant_matrix(column: &[f64]) -> Mat<f64> {
+        let n = column.len();
+        Mat::from_fn(n, n, |j, l| column[(j + n - l) % n])
+    }
+
+    /// Trigonometric interpolation of grid states (columns of `values`, samples ψ(x_j))
+    /// at arbitrary points; the Nyquist term enters as a cosine so real data stay real.
+    pub fn interpolate(&self, values: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
+        let n = self.len();
+        let ncols = values.ncols();
+        // Spectra of every column, scaled by 1/n.
+        let spectra: Vec<Vec<Complex64>> = (0..ncols)
+            .map(|j| {
+                let mut buf: Vec<Complex64> = (0..n).map(|i| Complex64::new(values[(i, j)], 0.0)).collect();
+                self.forward.process(&mut buf);
+                buf.iter_mut().for_each(|z| *z /= n as f64);
+                buf
+            })
+            .collect();
+        let length = self.stop - self.start;
+        let nyq = if self.has_nyquist() { Some(n / 2) } else { None };
+        let rows: Vec<Vec<f64>> = x
+            .par_iter()
+            .map(|&xi| {
+                let theta = 2.0 * PI * (xi - self.start) / length;
+                // e^{i k_p (x − start)} for p in numpy order: p < n/2 positive, p ≥ n/2 negative.
+                let mut out = vec![0.0; ncols];
+                for p in 0..n {
+                    let m = if p <= n / 2 { p as f64 } else { p as f64 - n as f64 };
+                    let (s, c) = (m * theta).sin_cos();
+                    for (j, spec) in spectra.iter().enumerate() {
+                        let z = spec[p];
+                        out[j] += if Some(p) == nyq { z.re * (n as f64 / 2.0 * theta).cos() } else { z.re * c - z.im * s };
+                    }
+                }
+                out
+            })
+            .collect();
+        Mat::from_fn(x.len(), ncols, |i, j| rows[i][j])
+    }
+}
+
+/// k_p = 2π·fftfreq(n, dx)[p].
+fn wavenumber(p: usize, n: usize, dx: f64) -> f64 {
+    let m = if p < n.div_ceil(2) { p as f64 } else { p as f64 - n as f64 };
+    2.0 * PI * m / (n as f64 * dx)
+}
+
+impl Basis for FourierGrid {
+    fn size(&self) -> usize {
+        self.len()
+    }
+    fn points(&self) -> &[f64] {
+        &self.x
+    }
+    fn neg_laplacian(&self) -> Mat<f64> {
+        FourierGrid::circulant_matrix(&self.circulant_column(|k| k * k))
+    }
+    fn potential_matrix(&self, v: &[f64]) -> Mat<f64> {
+        Mat::from_fn(self.len(), self.len(), |i, j| if i == j { v[i] } else { 0.0 })
+    }
+    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
+        let scale = 1.0 / self.dx.sqrt();
+        let values = Mat::from_fn(coefs.nrows(), coefs.ncols(), |i, j| coefs[(i, j)] * scale);
+        self.interpolate(values.as_ref(), x)
+    }
+    fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
+        coefs.to_owned()
+    }
+    fn describe(&self) -> String {
+        format!("FourierGrid(start={}, stop={}, points={}, dx={:.6e})", self.start, self.stop, self.len(), self.dx)
+    }
+}
+
+/// Validate a potential sampled on the points of a basis.
+pub fn check_samples(argument: &str, values: &[f64], expected: usize) -> Result<(), InputError> {
+    if values.len() != expected {
+        return Err(InputError::Length { argument: argument.into(), expected, got: values.len() });
+    }
+    check_finite(argument, values)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn wavenumbers_match_numpy_fftfreq_convention() {
+        // numpy.fft.fftfreq(4, 0.5) = [0, 0.5, -1, -0.5] (numpy docs convention).
+        let g = FourierGrid::new(0.0, 2.0, 4).unwrap();
+        let f: Vec<f64> = g.k().iter().map(|k| k / (2.0 * PI)).collect();
+        assert_eq!(f, vec![0.0, 0.5, -1.0, -0.5]);
+        let g = FourierGrid::new(0.0, 2.5, 5).unwrap();
+        let f: Vec<f64> = g.k().iter().map(|k| k / (2.0 * PI)).collect();
+        let want = [0.0, 0.4, 0.8, -0.8, -0.4];
+        for (a, b) in f.iter().zip(want) {
+            assert!((a - b).abs() < 1e-15);
+        }
+    }
+
+    #[test]
+    fn laplacian_is_exact_on_resolved_plane_waves() {
+        // −d²/dx² cos(2π·3x/L) = (2π·3/L)² cos(...) exactly for a resolved mode.
+        for n in [16, 17] {
+            let g = FourierGrid::new(-1.0, 2.0, n).unwrap();
+            let l = 3.0;
+            let kk = 2.0 * PI * 3.0 / l;
+            let t = g.neg_laplacian();
+            for i in 0..n {
+                let mut s = 0.0;
+                for j in 0..n {
+                    s += t[(i, j)] * (kk * (g.x()[j] + 1.0)).cos();
+                }
+                assert!((s - kk * kk * (kk * (g.x()[i] + 1.0)).cos()).abs() < 1e-10);
+            }
+        }
+    }
+
+    #[test]
+    fn interpolation_reproduces_band_limited_function() {
+        let g = FourierGrid::new(0.0, 1.0, 12).unwrap();
+        let f = |x: f64| 1.0 + (2.0 * PI * x).sin() + 0.3 * (2.0 * PI * 4.0 * x).cos();
+        let vals = Mat::from_fn(12, 1, |i, _| f(g.x()[i]));
+        let xs = [0.013, 0.5, 0.77, 0.99];
+        let out = g.interpolate(vals.as_ref(), &xs);
+        for (i, &x) in xs.iter().enumerate() {
+            assert!((out[(i, 0)] - f(x)).abs() < 1e-12);
+        }
+    }
+
+    #[test]
+    fn rejects_bad_boxes() {
+        assert!(FourierGrid::new(1.0, 1.0, 8).is_err());
+        assert!(FourierGrid::new(f64::NAN, 1.0, 8).is_err());
+        assert!(FourierGrid::new(0.0, 1.0, 1).is_err());
+    }
+}

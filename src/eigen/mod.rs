@@ -1,0 +1,178 @@
+//! Eigenstates of a [`Hamiltonian`]: full dense diagonalisation or, for the
+//! lowest states of large grids, a matrix-free block iteration.
+
+pub mod dense;
+
+use crate::basis::{fix_signs, BasisRef};
+use crate::error::{InputError, Result};
+use crate::hamiltonian::{Hamiltonian, Kinetic};
+use crate::units::Units;
+use faer::Mat;
+
+/// How to diagonalise. Parsed from a string only at the Python edge.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// Dense for small problems, iterative for large grids (see [`Method::resolve`]).
+    Auto,
+    /// Full dense symmetric eigensolver (faer), O(N³) time, O(N²) memory.
+    Dense,
+    /// Matrix-free LOBPCG with a kinetic-energy preconditioner, O(N·count) memory.
+    Iterative,
+}
+
+impl Method {
+    pub const CHOICES: [&'static str; 3] = ["auto", "dense", "iterative"];
+
+    pub fn parse(s: &str) -> std::result::Result<Self, InputError> {
+        match s {
+            "auto" => Ok(Method::Auto),
+            "dense" => Ok(Method::Dense),
+            "iterative" => Ok(Method::Iterative),
+            _ => Err(InputError::UnknownOption {
+                argument: "method".into(),
+                got: s.into(),
+                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
+            }),
+        }
+    }
+
+    pub fn name(self) -> &'static str {
+        match self {
+            Method::Auto => "auto",
+            Method::Dense => "dense",
+            Method::Iterative => "iterative",
+        }
+    }
+
+    /// The concrete method `Auto` picks for `h` and `count`.
+    pub fn resolve(self, h: &Hamiltonian, count: usize) -> Method {
+        match self {
+            Method::Auto => auto_choice(h, count),
+            m => m,
+        }
+    }
+}
+
+/// Options of [`solve`].
+#[derive(Debug, Clone)]
+pub struct SolveOptions {
+    pub count: usize,
+    pub method: Method,
+    /// Tolerance on the residual ‖Hψ − Eψ‖ ≤ tol·max(1, |E|) (iterative path).
+    pub tol: f64,
+    /// Iteration limit of the iterative path (`None`: a default that grows with count).
+    pub max_iter: Option<usize>,
+    /// Warm start: column-major N×k block of previous eigenvectors (iterative path).
+    pub initial: Option<Vec<f64>>,
+    /// Seed of the random start block (iterative path).
+    pub seed: u64,
+}
+
+impl SolveOptions {
+    pub fn new(count: usize) -> Self {
+        SolveOptions { count, method: Method::Auto, tol: 1e-10, max_iter: None, initial: None, seed: 0x5eed }
+    }
+}
+
+/// The lowest eigenpairs of a Hamiltonian.
+///
+/// * `energies` ascending, in the energy unit of `units`;
+/// * `vectors` (N × count): orthonormal coefficient vectors in the basis; the sign of
+///   each is fixed by [`fix_signs`] (positive in the leftmost region where |ψ| exceeds
+///   1 % of its maximum);
+/// * `residuals`: ‖Hψ − Eψ‖ (coefficient 2-norm, ‖ψ‖ = 1), energy units.
+#[derive(Debug, Clone)]
+pub struct Spectrum {
+    pub basis: BasisRef,
+    pub units: Units,
+    pub kinetic: Kinetic,
+    pub energies: Vec<f64>,
+    pub vectors: Mat<f64>,
+    pub residuals: Vec<f64>,
+    pub method: Method,
+    pub iterations: usize,
+}
+
+impl Spectrum {
+    pub fn count(&self) -> usize {
+        self.energies.len()
+    }
+    /// ψ_n(x_i) for all states, `x.len() × count`, normalised ∫|ψ|² dx = 1.
+    pub fn wavefunctions(&self, x: &[f64]) -> Mat<f64> {
+        self.basis.as_dyn().evaluate(self.vectors.as_ref(), x)
+    }
+}
+
+/// Validate `count` against the basis size.
+pub fn check_count(count: usize, size: usize) -> std::result::Result<(), InputError> {
+    if count == 0 || count > size {
+        return Err(InputError::range("count", format!("an integer in [1, {size}] (the basis size)"), count));
+    }
+    Ok(())
+}
+
+/// Validate `tol`.
+pub fn check_tol(tol: f64) -> std::result::Result<(), InputError> {
+    if !(tol.is_finite() && tol > 0.0 && tol < 1.0) {
+        return Err(InputError::range("tol", "a finite number in (0, 1)", tol));
+    }
+    Ok(())
+}
+
+/// Residual norms ‖H v_j − E_j v_j‖ of the columns of `vectors`.
+pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f64> {
+    let n = vectors.nrows();
+    let k = vectors.ncols();
+    let mut x = vec![0.0; n * k];
+    for j in 0..k {
+        for i in 0..n {
+            x[j * n + i] = vectors[(i, j)];
+        }
+    }
+    let mut y = vec![0.0; n * k];
+    h.apply_block(&x, &mut y, k);
+    (0..k)
+        .map(|j| {
+            (0..n)
+                .map(|i| {
+                    let r = y[j * n + i] - energies[j] * x[j * n + i];
+                    r * r
+                })
+                .sum::<f64>()
+                .sqrt()
+        })
+        .collect()
+}
+
+/// Lowest `opts.count` eigenpairs of `h`.
+pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
+    check_count(opts.count, h.size())?;
+    check_tol(opts.tol)?;
+    let method = opts.method.resolve(h, opts.count);
+    let (energies, mut vectors, iterations) = match method {
+        Method::Dense | Method::Auto => {
+            let (e, v) = dense::lowest(h, opts.count, faer::get_global_parallelism())?;
+            (e, v, 0)
+        }
+        Method::Iterative => {
+            return Err(InputError::range("method", "\"dense\" or \"auto\" (the iterative path is not built yet)", "iterative").into())
+        }
+    };
+    fix_signs(h.basis().as_dyn(), &mut vectors);
+    let residuals = residuals(h, &energies, &vectors);
+    Ok(Spectrum {
+        basis: h.basis().clone(),
+        units: h.units(),
+        kinetic: h.kinetic().clone(),
+        energies,
+        vectors,
+        residuals,
+        method,
+        iterations,
+    })
+}
+
+/// The rule of `method="auto"`.
+pub fn auto_choice(_h: &Hamiltonian, _count: usize) -> Method {
+    Method::Dense
+}

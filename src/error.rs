@@ -1,0 +1,154 @@
+//! Error types of the core. One enum per domain; the Python layer maps them
+//! onto `ValueError`, `TypeError`, `MemoryError` and `specwell.ConvergenceError`.
+//! No function reachable from user input panics: every invalid input returns
+//! one of these.
+
+use std::fmt;
+
+/// Invalid user input: the argument name and a description of the accepted range.
+#[derive(Debug, Clone, PartialEq)]
+pub enum InputError {
+    /// A value outside its allowed range, e.g. `size` must be >= 1.
+    /// `argument` names the argument, `expected` the accepted range, `got` what was passed.
+    OutOfRange { argument: String, expected: String, got: String },
+    /// A NaN or infinity where finite numbers are required.
+    NotFinite { argument: String, index: usize },
+    /// Array length mismatch.
+    Length { argument: String, expected: usize, got: usize },
+    /// An option string that is not in the table of choices.
+    UnknownOption { argument: String, got: String, choices: Vec<String> },
+    /// A request whose memory would exceed what the machine has.
+    TooLarge { argument: String, needed_bytes: u64, available_bytes: u64, hint: String },
+}
+
+impl InputError {
+    pub fn range(argument: &str, expected: impl Into<String>, got: impl fmt::Display) -> Self {
+        InputError::OutOfRange { argument: argument.into(), expected: expected.into(), got: got.to_string() }
+    }
+}
+
+impl fmt::Display for InputError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            InputError::OutOfRange { argument, expected, got } => {
+                write!(f, "`{argument}` must be {expected}; got {got}")
+            }
+            InputError::NotFinite { argument, index } => {
+                write!(f, "`{argument}` must contain only finite numbers; found NaN or inf at index {index}")
+            }
+            InputError::Length { argument, expected, got } => {
+                write!(f, "`{argument}` must have length {expected}; got length {got}")
+            }
+            InputError::UnknownOption { argument, got, choices } => {
+                write!(f, "`{argument}` must be one of {}; got {got:?}", choices.iter().map(|c| format!("{c:?}")).collect::<Vec<_>>().join(", "))
+            }
+            InputError::TooLarge { argument, needed_bytes, available_bytes, hint } => write!(
+                f,
+                "`{argument}` would need {:.2} GiB of memory but only {:.2} GiB is available; {hint}",
+                *needed_bytes as f64 / 1073741824.0,
+                *available_bytes as f64 / 1073741824.0
+            ),
+        }
+    }
+}
+
+impl std::error::Error for InputError {}
+
+/// Numerical failure of an algorithm on valid input.
+#[derive(Debug, Clone, PartialEq)]
+pub enum NumericalError {
+    /// An iterative eigensolver stopped at `max_iter` with residuals above tolerance.
+    /// Carries the best estimates so the caller can inspect them.
+    NotConverged { iterations: usize, tol: f64, energies: Vec<f64>, residuals: Vec<f64> },
+    /// The dense eigensolver failed (should not happen for finite symmetric input).
+    EigenFailed(String),
+}
+
+impl fmt::Display for NumericalError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            NumericalError::NotConverged { iterations, tol, residuals, .. } => {
+                let worst = residuals.iter().cloned().fold(0.0_f64, f64::max);
+                write!(
+                    f,
+                    "iterative eigensolver did not reach tol={tol:e} within {iterations} iterations \
+                     (largest relative residual {worst:e}); raise `max_iter`, loosen `tol`, or use method=\"dense\""
+                )
+            }
+            NumericalError::EigenFailed(s) => write!(f, "dense eigensolver failed: {s}"),
+        }
+    }
+}
+
+impl std::error::Error for NumericalError {}
+
+/// Any error of the core.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Error {
+    Input(InputError),
+    Numerical(NumericalError),
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Error::Input(e) => e.fmt(f),
+            Error::Numerical(e) => e.fmt(f),
+        }
+    }
+}
+
+impl std::error::Error for Error {}
+
+impl From<InputError> for Error {
+    fn from(e: InputError) -> Self {
+        Error::Input(e)
+    }
+}
+impl From<NumericalError> for Error {
+    fn from(e: NumericalError) -> Self {
+        Error::Numerical(e)
+    }
+}
+
+pub type Result<T> = std::result::Result<T, Error>;
+
+/// Check that every entry of `values` is finite.
+pub fn check_finite(argument: &str, values: &[f64]) -> std::result::Result<(), InputError> {
+    match values.iter().position(|v| !v.is_finite()) {
+        Some(index) => Err(InputError::NotFinite { argument: argument.into(), index }),
+        None => Ok(()),
+    }
+}
+
+/// Check that a scalar is finite and strictly positive.
+pub fn check_positive(argument: &str, value: f64) -> std::result::Result<(), InputError> {
+    if value.is_finite() && value > 0.0 {
+        Ok(())
+    } else {
+        Err(InputError::range(argument, "a finite number > 0", value))
+    }
+}
+
+/// Bytes of physical memory available now (Linux `MemAvailable`), or `None` if unknown.
+pub fn available_memory_bytes() -> Option<u64> {
+    let text = std::fs::read_to_string("/proc/meminfo").ok()?;
+    let line = text.lines().find(|l| l.starts_with("MemAvailable:"))?;
+    let kib: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kib * 1024)
+}
+
+/// Refuse up front a request needing `needed_bytes` when more than 80 % of the available memory.
+pub fn check_memory(argument: &str, needed_bytes: u64, hint: &str) -> std::result::Result<(), InputError> {
+    if let Some(avail) = available_memory_bytes() {
+        if needed_bytes as f64 > 0.8 * avail as f64 {
+            return Err(InputError::TooLarge {
+                argument: argument.into(),
+                needed_bytes,
+                available_bytes: avail,
+                hint: hint.into(),
+            });
+        }
+    }
+    Ok(())
+}

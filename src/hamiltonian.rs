@@ -1,0 +1,346 @@
+//! Hamiltonian H = T + V in a spectral basis: dense assembly and matrix-free H·ψ.
+//!
+//! Kinetic energy: with constant mass m, T = −(ħ²/2m) d²/dx²; with a mass profile
+//! m(x) on a Fourier grid, the BenDaniel-Duke (1966) form T = −(ħ²/2) d/dx (1/m) d/dx,
+//! built as Dᵀ·diag(ħ²/2m(x_j))·D with D the real antisymmetric spectral derivative
+//! (Nyquist mode dropped from D), plus the Nyquist mode's kinetic energy
+//! ⟨ħ²/2m⟩·k_N² on the alternating vector (−1)^j/√n, so that a constant profile gives
+//! exactly the constant-mass Fourier-grid operator. Symmetric by construction.
+//! Energies and lengths are in the chosen [`Units`].
+
+use crate::basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
+use crate::error::{check_finite, check_positive, InputError, Result};
+use crate::units::Units;
+use faer::Mat;
+use num_complex::Complex64;
+
+/// Particle mass: one value, or a profile on the grid points (Fourier grids only).
+/// In units of the unit system's mass unit (m_e in "atomic" and "semiconductor").
+#[derive(Debug, Clone, PartialEq)]
+pub enum Mass {
+    Uniform(f64),
+    Profile(Vec<f64>),
+}
+
+/// Kinetic prefactor ħ²/2m resolved from a [`Mass`] and the units.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Kinetic {
+    /// c = ħ²/2m (energy·length²).
+    Uniform(f64),
+    /// c_j = ħ²/2m(x_j) on the Fourier grid points.
+    Profile(Vec<f64>),
+}
+
+/// A real symmetric Hamiltonian on a basis.
+#[derive(Debug, Clone)]
+pub struct Hamiltonian {
+    basis: BasisRef,
+    potential: Vec<f64>,
+    kinetic: Kinetic,
+    units: Units,
+}
+
+impl Hamiltonian {
+    /// `potential` is sampled on `basis.points()`; `mass` as in [`Mass`].
+    pub fn new(basis: BasisRef, potential: Vec<f64>, mass: Mass, units: Units) -> Result<Self> {
+        let b = basis.as_dyn();
+        if potential.len() != b.points().len() {
+            return Err(InputError::Length {
+                argument: "potential".into(),
+                expected: b.points().len(),
+                got: potential.len(),
+            }
+            .into());
+        }
+        check_finite("potential", &potential)?;
+        let kinetic = match mass {
+            Mass::Uniform(m) => {
+                check_positive("mass", m)?;
+                Kinetic::Uniform(units.kinetic_prefactor(m))
+            }
+            Mass::Profile(ms) => {
+                if !matches!(basis, BasisRef::Fourier(_)) {
+                    return Err(InputError::range(
+                        "mass",
+                        "a single positive number for a HermiteBasis (mass profiles need a FourierGrid)",
+                        "an array",
+                    )
+                    .into());
+                }
+                if ms.len() != b.size() {
+                    return Err(InputError::Length { argument: "mass".into(), expected: b.size(), got: ms.len() }.into());
+                }
+                if let Some(i) = ms.iter().position(|m| !(m.is_finite() && *m > 0.0)) {
+                    return Err(InputError::range("mass", "finite and > 0 at every grid point", format!("{} at index {i}", ms[i])).into());
+                }
+                Kinetic::Profile(ms.iter().map(|&m| units.kinetic_prefactor(m)).collect())
+            }
+        };
+        Ok(Hamiltonian { basis, potential, kinetic, units })
+    }
+
+    pub fn basis(&self) -> &BasisRef {
+        &self.basis
+    }
+    pub fn potential(&self) -> &[f64] {
+        &self.potential
+    }
+    pub fn kinetic(&self) -> &Kinetic {
+        &self.kinetic
+    }
+    pub fn units(&self) -> Units {
+        self.units
+    }
+    pub fn size(&self) -> usize {
+        self.basis.as_dyn().size()
+    }
+
+    /// Bytes a dense N×N matrix of this Hamiltonian takes.
+    pub fn dense_bytes(&self) -> u64 {
+        let n = self.size() as u64;
+        n * n * 8
+    }
+
+    /// The dense N×N matrix (real symmetric).
+    pub fn matrix(&self) -> Mat<f64> {
+        let b = self.basis.as_dyn();
+        let mut h = b.potential_matrix(&self.potential);
+        match (&self.kinetic, &self.basis) {
+            (Kinetic::Uniform(c), _) => {
+                let t = b.neg_laplacian();
+                h += Mat::from_fn(t.nrows(), t.ncols(), |i, j| c * t[(i, j)]);
+            }
+            (Kinetic::Profile(cs), BasisRef::Fourier(g)) => {
+                h += variable_mass_kinetic(g, cs);
+            }
+            (Kinetic::Profile(_), BasisRef::Hermite(_)) => unreachable_profile(),
+        }
+        h
+    }
+
+    /// y = H x for `ncols` columns stored column-major (column j is x[j*N..(j+1)*N]).
+    /// Matrix-free: FFTs on a Fourier grid (O(N log N) per column), the quadrature
+    /// table on a Hermite basis (O(N·M) per column).
+    pub fn apply_block(&self, x: &[f64], y: &mut [f64], ncols: usize) {
+        let n = self.size();
+        debug_assert!(x.len() >= n * ncols && y.len() >= n * ncols);
+        match &self.basis {
+            BasisRef::Fourier(g) => {
+                let mut buf = vec![Complex64::new(0.0, 0.0); n];
+                let mut aux = vec![Complex64::new(0.0, 0.0); n];
+                let mut scratch = vec![Complex64::new(0.0, 0.0); g.forward().get_inplace_scratch_len()];
+                // Two real columns per complex FFT: H(a + ib) = Ha + iHb because H is real.
+                let mut j = 0;
+                while j < ncols {
+                    let second = j + 1 < ncols;
+                    for i in 0..n {
+                        let im = if second { x[(j + 1) * n + i] } else { 0.0 };
+                        buf[i] = Complex64::new(x[j * n + i], im);
+                    }
+                    fourier_kinetic_apply(g, &self.kinetic, &mut buf, &mut aux, &mut scratch);
+                    for i in 0..n {
+                        let v = self.potential[i];
+                        y[j * n + i] = buf[i].re + v * x[j * n + i];
+                        if second {
+                            y[(j + 1) * n + i] = buf[i].im + v * x[(j + 1) * n + i];
+                        }
+                    }
+                    j += 2;
+                }
+            }
+            BasisRef::Hermite(b) => hermite_apply(b, &self.kinetic, &self.potential, x, y, ncols),
+        }
+    }
+
+    /// y = H x for one vector, checking its length and finiteness.
+    pub fn apply(&self, x: &[f64]) -> Result<Vec<f64>> {
+        if x.len() != self.size() {
+            return Err(InputError::Length { argument: "psi".into(), expected: self.size(), got: x.len() }.into());
+        }
+        check_finite("psi", x)?;
+        let mut y = vec![0.0; x.len()];
+        self.apply_block(x, &mut y, 1);
+        Ok(y)
+    }
+}
+
+fn unreachable_profile() -> ! {
+    // Hamiltonian::new refuses mass profiles on Hermite bases.
+    unreachable!("mass profile on a Hermite basis is rejected in Hamiltonian::new")
+}
+
+/// Dense BenDaniel-Duke kinetic matrix on a Fourier grid (see module docs).
+fn variable_mass_kinetic(g: &FourierGrid, cs: &[f64]) -> Mat<f64> {
+    let n = g.len();
+    let d = FourierGrid::circulant_matrix(&g.derivative_column());
+    let cd = Mat::from_fn(n, n, |i, j| cs[i] * d[(i, j)]);
+    let mut t = d.transpose() * &cd;
+    if g.has_nyquist() {
+        let kn = std::f64::consts::PI / g.dx();
+        let cbar = cs.iter().sum::<f64>() / n as f64;
+        let s = cbar * kn * kn / n as f64;
+        for i in 0..n {
+            for j in 0..n {
+                t[(i, j)] += if (i + j) % 2 == 0 { s } else { -s };
+            }
+        }
+    }
+    t
+}
+
+/// buf ← T·buf on a Fourier grid (complex-linear, so two real columns can share it).
+fn fourier_kinetic_apply(
+    g: &FourierGrid,
+    kinetic: &Kinetic,
+    buf: &mut [Complex64],
+    aux: &mut [Complex64],
+    scratch: &mut [Complex64],
+) {
+    let n = g.len();
+    let inv_n = 1.0 / n as f64;
+    let k = g.k();
+    g.forward().process_with_scratch(buf, scratch);
+    match kinetic {
+        Kinetic::Uniform(c) => {
+            for (z, &kp) in buf.iter_mut().zip(k) {
+                *z *= c * kp * kp * inv_n;
+            }
+        }
+        Kinetic::Profile(cs) => {
+            let nyq = if g.has_nyquist() { Some(n / 2) } else { None };
+            let nyq_coef = nyq.map(|p| buf[p]);
+            // aux = D ψ (Nyquist dropped), then aux *= c(x), then buf = −D aux.
+            for p in 0..n {
+                aux[p] = if Some(p) == nyq { Complex64::new(0.0, 0.0) } else { buf[p] * Complex64::new(0.0, k[p] * inv_n) };
+            }
+            g.inverse().process_with_scratch(aux, scratch);
+            for (z, &c) in aux.iter_mut().zip(cs) {
+                *z *= c;
+            }
+            g.forward().process_with_scratch(aux, scratch);
+            for p in 0..n {
+                buf[p] = if Some(p) == nyq { Complex64::new(0.0, 0.0) } else { -aux[p] * Complex64::new(0.0, k[p] * inv_n) };
+            }
+            if let (Some(p), Some(z)) = (nyq, nyq_coef) {
+                let cbar = cs.iter().sum::<f64>() * inv_n;
+                buf[p] = z * (cbar * k[p] * k[p] * inv_n);
+            }
+        }
+    }
+    g.inverse().process_with_scratch(buf, scratch);
+}
+
+/// y = (c·p̂²/L² + Φ diag(V) Φᵀ) x on a Hermite basis, O(N·M) per column.
+fn hermite_apply(b: &HermiteBasis, kinetic: &Kinetic, v: &[f64], x: &[f64], y: &mut [f64], ncols: usize) {
+    let n = b.size();
+    let c = match kinetic {
+        Kinetic::Uniform(c) => *c / (b.length() * b.length()),
+        Kinetic::Profile(_) => unreachable_profile(),
+    };
+    let phi = b.phi();
+    let m = phi.ncols();
+    let mut q = vec![0.0; m];
+    for j in 0..ncols {
+        let xs = &x[j * n..(j + 1) * n];
+        let ys = &mut y[j * n..(j + 1) * n];
+        // q = V ⊙ (Φᵀ x)
+        for (k, qk) in q.iter_mut().enumerate() {
+            let col = phi.col(k);
+            let mut s = 0.0;
+            for i in 0..n {
+                s += col[i] * xs[i];
+            }
+            *qk = s * v[k];
+        }
+        for i in 0..n {
+            // p̂² row i: diagonal i + ½, entries at i ± 2.
+            let mut t = (i as f64 + 0.5) * xs[i];
+            if i >= 2 {
+                t -= 0.5 * (((i - 1) * i) as f64).sqrt() * xs[i - 2];
+            }
+            if i + 2 < n {
+                t -= 0.5 * (((i + 1) * (i + 2)) as f64).sqrt() * xs[i + 2];
+            }
+            ys[i] = c * t;
+        }
+        for (k, &qk) in q.iter().enumerate() {
+            let col = phi.col(k);
+            for i in 0..n {
+                ys[i] += col[i] * qk;
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::sync::Arc;
+
+    fn max_abs_diff(a: &[f64], b: &[f64]) -> f64 {
+        a.iter().zip(b).map(|(x, y)| (x - y).abs()).fold(0.0, f64::max)
+    }
+
+    fn check_apply_matches_matrix(h: &Hamiltonian) {
+        let n = h.size();
+        let m = h.matrix();
+        let x: Vec<f64> = (0..3 * n).map(|i| ((i * 7919) % 101) as f64 / 50.0 - 1.0).collect();
+        let mut y = vec![0.0; 3 * n];
+        h.apply_block(&x, &mut y, 3);
+        for j in 0..3 {
+            let want: Vec<f64> = (0..n).map(|i| (0..n).map(|l| m[(i, l)] * x[j * n + l]).sum()).collect();
+            assert!(max_abs_diff(&want, &y[j * n..(j + 1) * n]) < 1e-9 * (1.0 + want.iter().map(|v| v.abs()).fold(0.0, f64::max)));
+        }
+        // Symmetry of the dense matrix.
+        for i in 0..n {
+            for j in 0..n {
+                assert!((m[(i, j)] - m[(j, i)]).abs() < 1e-10);
+            }
+        }
+    }
+
+    #[test]
+    fn apply_matches_dense_matrix_fourier_uniform_and_profile() {
+        for n in [32, 33] {
+            let g = Arc::new(FourierGrid::new(-5.0, 5.0, n).unwrap());
+            let v: Vec<f64> = g.x().iter().map(|x| 0.5 * x * x).collect();
+            let h = Hamiltonian::new(BasisRef::Fourier(g.clone()), v.clone(), Mass::Uniform(2.0), Units::Natural).unwrap();
+            check_apply_matches_matrix(&h);
+            let ms: Vec<f64> = g.x().iter().map(|x| 1.0 + 0.5 * (x / 2.0).tanh()).collect();
+            let h = Hamiltonian::new(BasisRef::Fourier(g), v, Mass::Profile(ms), Units::Natural).unwrap();
+            check_apply_matches_matrix(&h);
+        }
+    }
+
+    #[test]
+    fn constant_profile_equals_uniform_mass() {
+        let g = Arc::new(FourierGrid::new(-3.0, 4.0, 24).unwrap());
+        let v: Vec<f64> = g.x().iter().map(|x| x.sin()).collect();
+        let a = Hamiltonian::new(BasisRef::Fourier(g.clone()), v.clone(), Mass::Uniform(0.7), Units::Natural).unwrap();
+        let b = Hamiltonian::new(BasisRef::Fourier(g), v, Mass::Profile(vec![0.7; 24]), Units::Natural).unwrap();
+        let (ma, mb) = (a.matrix(), b.matrix());
+        for i in 0..24 {
+            for j in 0..24 {
+                assert!((ma[(i, j)] - mb[(i, j)]).abs() < 1e-10);
+            }
+        }
+    }
+
+    #[test]
+    fn apply_matches_dense_matrix_hermite() {
+        let b = Arc::new(HermiteBasis::new(20, 0.3, 1.4, None).unwrap());
+        let v: Vec<f64> = b.points().iter().map(|x| x.powi(4) - x * x).collect();
+        let h = Hamiltonian::new(BasisRef::Hermite(b), v, Mass::Uniform(1.0), Units::Natural).unwrap();
+        check_apply_matches_matrix(&h);
+    }
+
+    #[test]
+    fn rejects_bad_potential_and_mass() {
+        let g = Arc::new(FourierGrid::new(0.0, 1.0, 8).unwrap());
+        let r = BasisRef::Fourier(g);
+        assert!(Hamiltonian::new(r.clone(), vec![0.0; 7], Mass::Uniform(1.0), Units::Natural).is_err());
+        assert!(Hamiltonian::new(r.clone(), vec![f64::NAN; 8], Mass::Uniform(1.0), Units::Natural).is_err());
+        assert!(Hamiltonian::new(r.clone(), vec![0.0; 8], Mass::Uniform(-1.0), Units::Natural).is_err());
+        assert!(Hamiltonian::new(r, vec![0.0; 8], Mass::Profile(vec![1.0; 7]), Units::Natural).is_err());
+    }
+}

@@ -1,0 +1,37 @@
+//! # specwell
+//!
+//! Bound states and wavepacket dynamics of the one-dimensional Schrödinger equation
+//! −(ħ²/2m) ψ'' + V(x) ψ = E ψ in spectral bases.
+//!
+//! ## Conventions
+//! * **Units** ([`units::Units`]): `Natural` (ħ = 1, kinetic −(1/2m)∂², mass 1 by
+//!   default), `Atomic` (same numbers in hartree/bohr/m_e), `Semiconductor` (nm, meV,
+//!   m_e, fs; ħ²/2m_e and ħ from CODATA 2018).
+//! * **Normalisation**: wavefunctions satisfy ∫|ψ(x)|² dx = 1; basis coefficient
+//!   vectors have unit 2-norm.
+//! * **Signs**: each eigenvector is positive in the leftmost region where |ψ|
+//!   exceeds 1 % of its maximum ([`basis::fix_signs`]).
+//! * **Time**: states evolve as exp(−iHt/ħ).
+//!
+//! ## Model limits
+//! Single-particle, single-band effective-mass model: parabolic bands, no
+//! many-body effects (no Hartree or exchange-correlation potential), no strain
+//! or non-parabolicity. Numbers are as good as that model.
+//!
+//! The pure-Rust core has no Python dependency; the pyo3 bindings live in
+//! [`python`] only.
+
+pub mod basis;
+pub mod eigen;
+pub mod error;
+pub mod hamiltonian;
+pub mod observables;
+pub mod units;
+
+mod python;
+
+pub use basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
+pub use eigen::{solve, Method, SolveOptions, Spectrum};
+pub use error::{Error, InputError, NumericalError};
+pub use hamiltonian::{Hamiltonian, Mass};
+pub use units::Units;

@@ -1,0 +1,95 @@
+//! Array conversion at the Python edge: accept any real array-like (lists, integer
+//! arrays, non-contiguous or read-only arrays are converted), reject complex or
+//! non-numeric input with a TypeError naming the argument.
+
+use numpy::{PyArray1, PyArray2, PyArrayMethods, PyUntypedArrayMethods};
+use pyo3::exceptions::{PyTypeError, PyValueError};
+use pyo3::prelude::*;
+use pyo3::types::PyAnyMethods;
+
+/// `np.asarray(obj)` with a dtype-kind check: "real" (bool/int/uint/float) or "complex".
+fn as_ndarray<'py>(obj: &Bound<'py, PyAny>, name: &str, allow_complex: bool) -> PyResult<(Bound<'py, PyAny>, bool)> {
+    let py = obj.py();
+    let np = py.import("numpy")?;
+    let arr = np.call_method1("asarray", (obj,)).map_err(|_| {
+        PyTypeError::new_err(format!("`{name}` must be an array-like of real numbers; got {}", type_name(obj)))
+    })?;
+    let kind: String = arr.getattr("dtype")?.getattr("kind")?.extract()?;
+    let is_complex = kind == "c";
+    if !(matches!(kind.as_str(), "b" | "i" | "u" | "f") || (allow_complex && is_complex)) {
+        let what = if allow_complex { "real or complex numbers" } else { "real numbers" };
+        let dtype: String = arr.getattr("dtype")?.str()?.extract()?;
+        return Err(PyTypeError::new_err(format!("`{name}` must be an array of {what}; got dtype {dtype}")));
+    }
+    Ok((arr, is_complex))
+}
+
+fn type_name(obj: &Bound<'_, PyAny>) -> String {
+    obj.get_type().name().map(|n| n.to_string()).unwrap_or_else(|_| "an unknown type".into())
+}
+
+/// A 1-D real array of length `expected` (if given) as a Vec<f64>.
+pub fn vec_f64(obj: &Bound<'_, PyAny>, name: &str, expected: Option<usize>) -> PyResult<Vec<f64>> {
+    let (arr, _) = as_ndarray(obj, name, false)?;
+    let ndim: usize = arr.getattr("ndim")?.extract()?;
+    if ndim != 1 {
+        let shape: String = arr.getattr("shape")?.str()?.extract()?;
+        return Err(PyValueError::new_err(format!("`{name}` must be 1-dimensional; got shape {shape}")));
+    }
+    let arr = arr.call_method1("astype", ("float64",))?;
+    let arr = arr.cast_into::<PyArray1<f64>>().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    let v = arr.readonly().as_array().to_vec();
+    if let Some(n) = expected {
+        if v.len() != n {
+            return Err(PyValueError::new_err(format!("`{name}` must have length {n}; got length {}", v.len())));
+        }
+    }
+    Ok(v)
+}
+
+/// A 1-D array that may be complex: (real part, imaginary part or None).
+pub fn vec_f64_or_complex(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<f64>, Option<Vec<f64>>)> {
+    let (arr, is_complex) = as_ndarray(obj, name, true)?;
+    if is_complex {
+        let re = vec_f64(&arr.getattr("real")?, name, None)?;
+        let im = vec_f64(&arr.getattr("imag")?, name, None)?;
+        Ok((re, Some(im)))
+    } else {
+        Ok((vec_f64(&arr, name, None)?, None))
+    }
+}
+
+/// A 2-D real array as (rows, cols, row-major data).
+pub fn mat_f64(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(usize, usize, Vec<f64>)> {
+    let (arr, _) = as_ndarray(obj, name, false)?;
+    let ndim: usize = arr.getattr("ndim")?.extract()?;
+    if ndim != 2 {
+        let shape: String = arr.getattr("shape")?.str()?.extract()?;
+        return Err(PyValueError::new_err(format!("`{name}` must be 2-dimensional; got shape {shape}")));
+    }
+    let arr = arr.call_method1("astype", ("float64",))?;
+    let arr = arr.cast_into::<PyArray2<f64>>().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    let ro = arr.readonly();
+    let shape = ro.shape();
+    let (r, c) = (shape[0], shape[1]);
+    Ok((r, c, ro.as_array().iter().cloned().collect()))
+}
+
+/// A faer matrix as a 2-D numpy array (copy).
+pub fn mat_to_py<'py>(py: Python<'py>, m: faer::MatRef<'_, f64>) -> Bound<'py, PyArray2<f64>> {
+    let a = ndarray::Array2::from_shape_fn((m.nrows(), m.ncols()), |(i, j)| m[(i, j)]);
+    PyArray2::from_owned_array(py, a)
+}
+
+/// The transpose of a faer matrix as a 2-D numpy array (copy).
+pub fn mat_t_to_py<'py>(py: Python<'py>, m: faer::MatRef<'_, f64>) -> Bound<'py, PyArray2<f64>> {
+    mat_to_py(py, m.transpose())
+}
+
+/// A non-negative integer argument with its allowed range.
+pub fn to_usize(value: i64, name: &str, min: usize, max: usize) -> PyResult<usize> {
+    if value < min as i64 || value > max as i64 {
+        return Err(PyValueError::new_err(format!("`{name}` must be an integer in [{min}, {max}]; got {value}")));
+    }
+    Ok(value as usize)
+}

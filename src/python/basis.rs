@@ -1,0 +1,136 @@
+//! Python classes HermiteBasis and FourierGrid.
+
+use super::arrays::to_usize;
+use super::errors::IntoPyResult;
+use crate::basis::{fourier, hermite, Basis, BasisRef, FourierGrid, HermiteBasis};
+use numpy::PyArray1;
+use pyo3::exceptions::PyTypeError;
+use pyo3::prelude::*;
+use std::sync::Arc;
+
+/// Gauss-Hermite function basis χ_n(x) = ψ_n((x − center)/length)/sqrt(length).
+#[pyclass(name = "HermiteBasis", module = "specwell._core", frozen)]
+pub struct PyHermiteBasis {
+    pub inner: Arc<HermiteBasis>,
+}
+
+#[pymethods]
+impl PyHermiteBasis {
+    #[new]
+    #[pyo3(signature = (size, center=0.0, length=1.0, quadrature=None))]
+    fn new(py: Python<'_>, size: i64, center: f64, length: f64, quadrature: Option<i64>) -> PyResult<Self> {
+        let size = to_usize(size, "size", 1, hermite::MAX_SIZE)?;
+        let quadrature = quadrature.map(|q| to_usize(q, "quadrature", size + 1, 4 * hermite::MAX_SIZE)).transpose()?;
+        let inner = py.detach(|| HermiteBasis::new(size, center, length, quadrature)).py(py)?;
+        Ok(PyHermiteBasis { inner: Arc::new(inner) })
+    }
+    /// Number of basis functions.
+    #[getter]
+    fn size(&self) -> usize {
+        self.inner.size()
+    }
+    #[getter]
+    fn center(&self) -> f64 {
+        self.inner.center()
+    }
+    #[getter]
+    fn length(&self) -> f64 {
+        self.inner.length()
+    }
+    /// Number of Gauss-Hermite quadrature nodes.
+    #[getter]
+    fn quadrature(&self) -> usize {
+        self.inner.quadrature()
+    }
+    /// Quadrature points x_k = center + length·ξ_k where potentials are sampled.
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.points())
+    }
+    /// Dimensionless Gauss-Hermite nodes ξ_k.
+    #[getter]
+    fn nodes<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.nodes())
+    }
+    fn __len__(&self) -> usize {
+        self.inner.size()
+    }
+    fn __repr__(&self) -> String {
+        self.inner.describe()
+    }
+}
+
+/// Periodic Fourier grid on [start, stop) with `points` points.
+#[pyclass(name = "FourierGrid", module = "specwell._core", frozen)]
+pub struct PyFourierGrid {
+    pub inner: Arc<FourierGrid>,
+}
+
+#[pymethods]
+impl PyFourierGrid {
+    #[new]
+    fn new(py: Python<'_>, start: f64, stop: f64, points: i64) -> PyResult<Self> {
+        let points = to_usize(points, "points", 2, fourier::MAX_POINTS)?;
+        let inner = py.detach(|| FourierGrid::new(start, stop, points)).py(py)?;
+        Ok(PyFourierGrid { inner: Arc::new(inner) })
+    }
+    #[getter]
+    fn start(&self) -> f64 {
+        self.inner.start()
+    }
+    #[getter]
+    fn stop(&self) -> f64 {
+        self.inner.stop()
+    }
+    #[getter]
+    fn points(&self) -> usize {
+        self.inner.len()
+    }
+    /// Number of basis functions (= points).
+    #[getter]
+    fn size(&self) -> usize {
+        self.inner.len()
+    }
+    #[getter]
+    fn dx(&self) -> f64 {
+        self.inner.dx()
+    }
+    /// Grid points x_j = start + j·dx.
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.x())
+    }
+    /// Wave numbers 2π·fftfreq(points, dx).
+    #[getter]
+    fn k<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.k())
+    }
+    fn __len__(&self) -> usize {
+        self.inner.len()
+    }
+    fn __repr__(&self) -> String {
+        self.inner.describe()
+    }
+}
+
+/// Accept a HermiteBasis or a FourierGrid as `name`.
+pub fn extract_basis(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<BasisRef> {
+    if let Ok(b) = obj.cast::<PyHermiteBasis>() {
+        return Ok(BasisRef::Hermite(b.get().inner.clone()));
+    }
+    if let Ok(g) = obj.cast::<PyFourierGrid>() {
+        return Ok(BasisRef::Fourier(g.get().inner.clone()));
+    }
+    Err(PyTypeError::new_err(format!(
+        "`{name}` must be a specwell.HermiteBasis or specwell.FourierGrid; got {}",
+        obj.get_type().name().map(|n| n.to_string()).unwrap_or_default()
+    )))
+}
+
+/// The Python object for a basis handle (for `Hamiltonian.basis`, `Spectrum.basis`).
+pub fn basis_to_py(py: Python<'_>, b: &BasisRef) -> PyResult<Py<PyAny>> {
+    Ok(match b {
+        BasisRef::Hermite(h) => Py::new(py, PyHermiteBasis { inner: h.clone() })?.into_any(),
+        BasisRef::Fourier(g) => Py::new(py, PyFourierGrid { inner: g.clone() })?.into_any(),
+    })
+}

@@ -1,0 +1,41 @@
+//! Core errors → Python exceptions, at the edge only.
+
+use crate::error::{Error, InputError, NumericalError};
+use pyo3::exceptions::{PyMemoryError, PyRuntimeError, PyValueError};
+use pyo3::prelude::*;
+
+pyo3::create_exception!(
+    _core,
+    ConvergenceError,
+    PyRuntimeError,
+    "An iterative method missed its tolerance. Attributes: `energies` and `residuals` (best estimates), `iterations`."
+);
+
+/// Convert a core error into the Python exception the public contract promises.
+pub fn to_py(py: Python<'_>, e: Error) -> PyErr {
+    match e {
+        Error::Input(InputError::TooLarge { .. }) => PyMemoryError::new_err(e.to_string()),
+        Error::Input(i) => PyValueError::new_err(i.to_string()),
+        Error::Numerical(NumericalError::NotConverged { iterations, ref energies, ref residuals, .. }) => {
+            let err = ConvergenceError::new_err(e.to_string());
+            let value = err.value(py);
+            // Attaching attributes cannot fail for a fresh exception instance; ignore if it does.
+            let _ = value.setattr("energies", energies.clone());
+            let _ = value.setattr("residuals", residuals.clone());
+            let _ = value.setattr("iterations", iterations);
+            err
+        }
+        Error::Numerical(n) => PyRuntimeError::new_err(n.to_string()),
+    }
+}
+
+/// Shorthand: map a core `Result` into a `PyResult`.
+pub trait IntoPyResult<T> {
+    fn py(self, py: Python<'_>) -> PyResult<T>;
+}
+
+impl<T, E: Into<Error>> IntoPyResult<T> for Result<T, E> {
+    fn py(self, py: Python<'_>) -> PyResult<T> {
+        self.map_err(|e| to_py(py, e.into()))
+    }
+}

@@ -1,0 +1,248 @@
+//! Python classes Hamiltonian and Spectrum.
+
+use super::arrays::{mat_t_to_py, mat_to_py, to_usize, vec_f64, vec_f64_or_complex};
+use super::basis::{basis_to_py, extract_basis};
+use super::errors::IntoPyResult;
+use crate::basis::BasisRef;
+use crate::eigen::{self, Method, SolveOptions, Spectrum};
+use crate::error::check_memory;
+use crate::hamiltonian::{Hamiltonian, Mass};
+use crate::observables;
+use crate::units::Units;
+use numpy::{PyArray1, PyArray2};
+use num_complex::Complex64;
+use pyo3::exceptions::PyTypeError;
+use pyo3::prelude::*;
+use std::sync::Arc;
+
+/// Samples of a potential on the basis points: a vectorised callable f(x) or an array.
+pub fn potential_samples(obj: &Bound<'_, PyAny>, basis: &BasisRef, name: &str) -> PyResult<Vec<f64>> {
+    let points = basis.as_dyn().points();
+    if obj.is_callable() {
+        let x = PyArray1::from_slice(obj.py(), points);
+        let values = obj.call1((x,)).map_err(|e| {
+            PyTypeError::new_err(format!("`{name}` was called with the basis points (a float64 array) and raised: {e}"))
+        })?;
+        // A callable returning a scalar (e.g. lambda x: 0.0) means a constant potential.
+        if let Ok(c) = values.extract::<f64>() {
+            return Ok(vec![c; points.len()]);
+        }
+        return vec_f64(&values, name, Some(points.len()));
+    }
+    vec_f64(obj, name, Some(points.len()))
+}
+
+/// A mass argument: a positive number, or an array on a FourierGrid.
+pub fn extract_mass(obj: &Bound<'_, PyAny>, basis: &BasisRef) -> PyResult<Mass> {
+    if let Ok(m) = obj.extract::<f64>() {
+        return Ok(Mass::Uniform(m));
+    }
+    if obj.is_callable() {
+        return Ok(Mass::Profile(potential_samples(obj, basis, "mass")?));
+    }
+    Ok(Mass::Profile(vec_f64(obj, "mass", None)?))
+}
+
+/// H = T + V on a basis. See `specwell._core.pyi` for the documented signature.
+#[pyclass(name = "Hamiltonian", module = "specwell._core", frozen)]
+pub struct PyHamiltonian {
+    pub inner: Arc<Hamiltonian>,
+}
+
+#[pymethods]
+impl PyHamiltonian {
+    #[new]
+    #[pyo3(signature = (basis, potential, mass=None, units="natural"))]
+    fn new(
+        py: Python<'_>,
+        basis: &Bound<'_, PyAny>,
+        potential: &Bound<'_, PyAny>,
+        mass: Option<&Bound<'_, PyAny>>,
+        units: &str,
+    ) -> PyResult<Self> {
+        let units = Units::parse(units).py(py)?;
+        let b = extract_basis(basis, "basis")?;
+        let v = potential_samples(potential, &b, "potential")?;
+        let m = match mass {
+            None => Mass::Uniform(1.0),
+            Some(obj) => extract_mass(obj, &b)?,
+        };
+        let h = Hamiltonian::new(b, v, m, units).py(py)?;
+        Ok(PyHamiltonian { inner: Arc::new(h) })
+    }
+
+    /// The dense N×N matrix.
+    fn matrix<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let h = self.inner.clone();
+        check_memory("Hamiltonian.matrix", 2 * h.dense_bytes(), "the matrix does not fit; use apply() or solve(method=\"iterative\")").py(py)?;
+        let m = py.detach(move || h.matrix());
+        Ok(mat_to_py(py, m.as_ref()))
+    }
+
+    /// H·psi (matrix-free). `psi`: real or complex, length N.
+    fn apply<'py>(&self, py: Python<'py>, psi: &Bound<'py, PyAny>) -> PyResult<Py<PyAny>> {
+        let (re, im) = vec_f64_or_complex(psi, "psi")?;
+        let h = self.inner.clone();
+        let hre = py.detach(|| h.apply(&re)).py(py)?;
+        match im {
+            None => Ok(PyArray1::from_vec(py, hre).into_any().unbind()),
+            Some(im) => {
+                let him = py.detach(|| h.apply(&im)).py(py)?;
+                let z: Vec<Complex64> = hre.iter().zip(&him).map(|(&a, &b)| Complex64::new(a, b)).collect();
+                Ok(PyArray1::from_vec(py, z).into_any().unbind())
+            }
+        }
+    }
+
+    /// The lowest `count` eigenpairs.
+    #[pyo3(signature = (count, method="auto", tol=1e-10, max_iter=None, initial=None, seed=0x5eed))]
+    fn solve(
+        &self,
+        py: Python<'_>,
+        count: i64,
+        method: &str,
+        tol: f64,
+        max_iter: Option<i64>,
+        initial: Option<&Bound<'_, PyAny>>,
+        seed: u64,
+    ) -> PyResult<PySpectrum> {
+        let n = self.inner.size();
+        let method = Method::parse(method).py(py)?;
+        let mut opts = SolveOptions::new(to_usize(count, "count", 1, n)?);
+        opts.method = method;
+        opts.tol = tol;
+        opts.seed = seed;
+        opts.max_iter = max_iter.map(|m| to_usize(m, "max_iter", 1, 1 << 31)).transpose()?;
+        if let Some(init) = initial {
+            opts.initial = Some(initial_block(init, n)?);
+        }
+        let h = self.inner.clone();
+        let s = py.detach(move || eigen::solve(&h, &opts)).py(py)?;
+        Ok(PySpectrum { inner: Arc::new(s) })
+    }
+
+    #[getter]
+    fn basis(&self, py: Python<'_>) -> PyResult<Py<PyAny>> {
+        basis_to_py(py, self.inner.basis())
+    }
+    /// Potential samples on basis.x.
+    #[getter]
+    fn potential<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.potential())
+    }
+    #[getter]
+    fn units(&self) -> &'static str {
+        self.inner.units().name()
+    }
+    #[getter]
+    fn size(&self) -> usize {
+        self.inner.size()
+    }
+    fn __repr__(&self) -> String {
+        format!("Hamiltonian({}, units={:?})", self.inner.basis().as_dyn().describe(), self.inner.units().name())
+    }
+}
+
+/// Warm-start block: a Spectrum, or an array (k, N) of vectors in the basis.
+fn initial_block(obj: &Bound<'_, PyAny>, n: usize) -> PyResult<Vec<f64>> {
+    if let Ok(s) = obj.cast::<PySpectrum>() {
+        let v = &s.get().inner.vectors;
+        if v.nrows() != n {
+            return Err(pyo3::exceptions::PyValueError::new_err(format!(
+                "`initial` spectrum has basis size {}; this Hamiltonian has {n}",
+                v.nrows()
+            )));
+        }
+        return Ok((0..v.ncols()).flat_map(|j| (0..n).map(move |i| v[(i, j)])).collect());
+    }
+    let (r, c, data) = super::arrays::mat_f64(obj, "initial")?;
+    if c != n || r == 0 {
+        return Err(pyo3::exceptions::PyValueError::new_err(format!(
+            "`initial` must have shape (k, {n}) with k >= 1; got ({r}, {c})"
+        )));
+    }
+    Ok(data)
+}
+
+/// Eigenpairs of a Hamiltonian.
+#[pyclass(name = "Spectrum", module = "specwell._core", frozen)]
+pub struct PySpectrum {
+    pub inner: Arc<Spectrum>,
+}
+
+#[pymethods]
+impl PySpectrum {
+    /// Energies, ascending, shape (count,).
+    #[getter]
+    fn energies<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.energies)
+    }
+    /// Residual norms ‖Hψ − Eψ‖, shape (count,).
+    #[getter]
+    fn residuals<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.residuals)
+    }
+    /// Coefficient vectors in the basis, shape (count, N), orthonormal rows.
+    #[getter]
+    fn vectors<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
+        mat_t_to_py(py, self.inner.vectors.as_ref())
+    }
+    /// The basis' own sample points (grid points or quadrature nodes).
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.basis.as_dyn().points())
+    }
+    #[getter]
+    fn count(&self) -> usize {
+        self.inner.count()
+    }
+    #[getter]
+    fn method(&self) -> &'static str {
+        self.inner.method.name()
+    }
+    #[getter]
+    fn iterations(&self) -> usize {
+        self.inner.iterations
+    }
+    #[getter]
+    fn units(&self) -> &'static str {
+        self.inner.units.name()
+    }
+    #[getter]
+    fn basis(&self, py: Python<'_>) -> PyResult<Py<PyAny>> {
+        basis_to_py(py, &self.inner.basis)
+    }
+    /// ψ_n(x) for every state, shape (count, len(x)); x=None: the basis' own points.
+    #[pyo3(signature = (x=None))]
+    fn wavefunctions<'py>(&self, py: Python<'py>, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let xs = match x {
+            None => self.inner.basis.as_dyn().points().to_vec(),
+            Some(obj) => {
+                let v = vec_f64(obj, "x", None)?;
+                crate::error::check_finite("x", &v).py(py)?;
+                v
+            }
+        };
+        let s = self.inner.clone();
+        let w = py.detach(move || s.wavefunctions(&xs));
+        Ok(mat_t_to_py(py, w.as_ref()))
+    }
+    /// ⟨i|x|j⟩, shape (count, count), length units.
+    fn dipole_matrix<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
+        mat_to_py(py, observables::dipole_matrix(&self.inner).as_ref())
+    }
+    /// f_ij = (2m/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
+    fn oscillator_strengths<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let f = observables::oscillator_strengths(&self.inner).py(py)?;
+        Ok(mat_to_py(py, f.as_ref()))
+    }
+    fn __len__(&self) -> usize {
+        self.inner.count()
+    }
+    fn __repr__(&self) -> String {
+        let unit = self.inner.units.symbols()[1];
+        let e: Vec<String> = self.inner.energies.iter().take(6).map(|e| format!("{e:.10}")).collect();
+        let more = if self.inner.count() > 6 { ", …" } else { "" };
+        format!("Spectrum(count={}, energies=[{}{}] {unit}, method={:?})", self.inner.count(), e.join(", "), more, self.inner.method.name())
+    }
+}

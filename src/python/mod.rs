@@ -1,0 +1,23 @@
+//! The pyo3 layer: borrow arrays, call the core, convert results and errors.
+//! Nothing here does numerics; option strings are parsed once, here.
+
+mod arrays;
+mod basis;
+mod errors;
+mod hamiltonian;
+
+use pyo3::prelude::*;
+
+/// specwell._core: the compiled extension. Import names from `specwell` instead.
+#[pymodule]
+fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_class::<basis::PyHermiteBasis>()?;
+    m.add_class::<basis::PyFourierGrid>()?;
+    m.add_class::<hamiltonian::PyHamiltonian>()?;
+    m.add_class::<hamiltonian::PySpectrum>()?;
+    m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
+    m.add("UNITS", crate::units::Units::CHOICES.to_vec())?;
+    m.add("METHODS", crate::eigen::Method::CHOICES.to_vec())?;
+    m.add("__version__", env!("CARGO_PKG_VERSION"))?;
+    Ok(())
+}

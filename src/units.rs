@@ -1,0 +1,142 @@
+//! Unit systems and CODATA 2018 constants.
+//!
+//! Every solver works with two numbers taken from the unit system:
+//! * `hbar2_over_2me`: ħ²/(2 m_e) in energy·length², so the kinetic operator for
+//!   a particle of mass `m` (in units of the system's mass unit) is
+//!   `-(hbar2_over_2me / m) d²/dx²`;
+//! * `hbar`: ħ in energy·time, so states evolve as `exp(-i H t / hbar)`.
+//!
+//! | system | length | energy | mass | time | ħ²/2m_e | ħ |
+//! |---|---|---|---|---|---|---|
+//! | `Natural` | 1 | 1 | 1 | 1 | 1/2 | 1 |
+//! | `Atomic` | bohr | hartree | m_e | ħ/E_h | 1/2 | 1 |
+//! | `Semiconductor` | nm | meV | m_e | fs | 38.0998… meV nm² | 658.2119… meV fs |
+
+use crate::error::InputError;
+
+/// CODATA 2018 exact and recommended values (SI).
+pub mod codata2018 {
+    /// Reduced Planck constant ħ, J s (exact: h/2π with h exact).
+    pub const HBAR: f64 = 1.054_571_817e-34;
+    /// Electron mass, kg.
+    pub const ELECTRON_MASS: f64 = 9.109_383_7015e-31;
+    /// Elementary charge, C (exact).
+    pub const ELEMENTARY_CHARGE: f64 = 1.602_176_634e-19;
+    /// Hartree energy, J.
+    pub const HARTREE: f64 = 4.359_744_722_2071e-18;
+    /// Bohr radius, m.
+    pub const BOHR_RADIUS: f64 = 5.291_772_109_03e-11;
+}
+
+/// A unit system. Parsed from a string only at the Python edge.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Units {
+    /// ħ = 1, mass unit 1: kinetic energy -(1/2m) d²/dx².
+    Natural,
+    /// Hartree atomic units (ħ = m_e = e = 1): the same numbers as `Natural`,
+    /// lengths in bohr, energies in hartree, times in ħ/E_h.
+    Atomic,
+    /// Lengths in nm, energies in meV, masses in m_e, times in fs.
+    Semiconductor,
+}
+
+impl Units {
+    /// The accepted option strings, in the order listed in error messages.
+    pub const CHOICES: [&'static str; 3] = ["natural", "atomic", "semiconductor"];
+
+    /// Parse an option string (exact, lower case).
+    pub fn parse(s: &str) -> Result<Self, InputError> {
+        match s {
+            "natural" => Ok(Units::Natural),
+            "atomic" => Ok(Units::Atomic),
+            "semiconductor" => Ok(Units::Semiconductor),
+            _ => Err(InputError::UnknownOption {
+                argument: "units".into(),
+                got: s.into(),
+                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
+            }),
+        }
+    }
+
+    /// The option string of this system.
+    pub fn name(self) -> &'static str {
+        match self {
+            Units::Natural => "natural",
+            Units::Atomic => "atomic",
+            Units::Semiconductor => "semiconductor",
+        }
+    }
+
+    /// ħ²/(2 m_e) in energy·length² of this system.
+    pub fn hbar2_over_2me(self) -> f64 {
+        use codata2018::*;
+        match self {
+            Units::Natural | Units::Atomic => 0.5,
+            Units::Semiconductor => {
+                // J m² -> meV nm²: divide by (e * 1e-3) and multiply by 1e18.
+                HBAR * HBAR / (2.0 * ELECTRON_MASS) / (ELEMENTARY_CHARGE * 1e-3) * 1e18
+            }
+        }
+    }
+
+    /// ħ in energy·time of this system.
+    pub fn hbar(self) -> f64 {
+        use codata2018::*;
+        match self {
+            Units::Natural | Units::Atomic => 1.0,
+            // J s -> meV fs
+            Units::Semiconductor => HBAR / (ELEMENTARY_CHARGE * 1e-3) * 1e15,
+        }
+    }
+
+    /// Energy of one unit of this system in joules (natural units: `None`).
+    pub fn energy_unit_joule(self) -> Option<f64> {
+        match self {
+            Units::Natural => None,
+            Units::Atomic => Some(codata2018::HARTREE),
+            Units::Semiconductor => Some(codata2018::ELEMENTARY_CHARGE * 1e-3),
+        }
+    }
+
+    /// Length of one unit of this system in metres (natural units: `None`).
+    pub fn length_unit_metre(self) -> Option<f64> {
+        match self {
+            Units::Natural => None,
+            Units::Atomic => Some(codata2018::BOHR_RADIUS),
+            Units::Semiconductor => Some(1e-9),
+        }
+    }
+
+    /// Symbols (length, energy, mass, time) for tables and plots.
+    pub fn symbols(self) -> [&'static str; 4] {
+        match self {
+            Units::Natural => ["", "", "", ""],
+            Units::Atomic => ["bohr", "Ha", "m_e", "ħ/Ha"],
+            Units::Semiconductor => ["nm", "meV", "m_e", "fs"],
+        }
+    }
+
+    /// Kinetic prefactor ħ²/(2m) for a mass `mass` in units of the system's mass unit.
+    pub fn kinetic_prefactor(self, mass: f64) -> f64 {
+        self.hbar2_over_2me() / mass
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn semiconductor_constants_match_recalled_values() {
+        // Recalled from memory (CODATA 2018 derived): ħ²/2m_e = 38.0998 meV nm², ħ = 658.2120 meV fs.
+        assert!((Units::Semiconductor.hbar2_over_2me() - 38.0998).abs() < 1e-3);
+        assert!((Units::Semiconductor.hbar() - 658.2120).abs() < 1e-3);
+    }
+
+    #[test]
+    fn parse_rejects_unknown() {
+        let e = Units::parse("SI").unwrap_err();
+        assert!(e.to_string().contains("natural"));
+        assert_eq!(Units::parse("atomic").unwrap(), Units::Atomic);
+    }
+}
