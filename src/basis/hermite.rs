@@ -198,7 +198,7 @@ mod tests {
         let b = HermiteBasis::new(30, 0.0, 1.0, None).unwrap();
         let v: Vec<f64> = b.points().iter().map(|x| x * x).collect();
         let m = b.potential_matrix(&v);
-        for i in 0..30 {
+        for i in 0..30usize {
             for j in 0..30 {
                 let want = if i == j {
                     i as f64 + 0.5
