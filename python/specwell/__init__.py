@@ -16,6 +16,7 @@ from specwell._core import (
     HermiteBasis,
     Spectrum,
     __version__,
+    eigh,
 )
 
 __all__ = [
@@ -27,4 +28,5 @@ __all__ = [
     "HermiteBasis",
     "Spectrum",
     "__version__",
+    "eigh",
 ]

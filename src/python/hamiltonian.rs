@@ -246,3 +246,21 @@ impl PySpectrum {
         format!("Spectrum(count={}, energies=[{}{}] {unit}, method={:?})", self.inner.count(), e.join(", "), more, self.inner.method.name())
     }
 }
+
+/// All eigenpairs of a real symmetric matrix (lower triangle read) through the
+/// core's dense solver: (values ascending, vectors as columns).
+#[pyfunction]
+pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray2<f64>>)> {
+    let (r, c, data) = super::arrays::mat_f64(a, "a")?;
+    if r != c || r == 0 {
+        return Err(pyo3::exceptions::PyValueError::new_err(format!("`a` must be a non-empty square matrix; got shape ({r}, {c})")));
+    }
+    crate::error::check_finite("a", &data).py(py)?;
+    let (vals, vecs) = py
+        .detach(move || {
+            let m = faer::Mat::from_fn(r, r, |i, j| data[i * r + j]);
+            crate::eigen::dense::eigh(m.as_ref(), faer::get_global_parallelism())
+        })
+        .py(py)?;
+    Ok((PyArray1::from_vec(py, vals), mat_to_py(py, vecs.as_ref())))
+}

@@ -15,6 +15,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<basis::PyFourierGrid>()?;
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
+    m.add_function(wrap_pyfunction!(hamiltonian::eigh, m)?)?;
     m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
     m.add("UNITS", crate::units::Units::CHOICES.to_vec())?;
     m.add("METHODS", crate::eigen::Method::CHOICES.to_vec())?;
