@@ -31,6 +31,22 @@ pub enum Kinetic {
     Profile(Vec<f64>),
 }
 
+/// Largest |V| accepted: beyond this, squares in residuals and eigensolver
+/// scaling overflow f64.
+pub const MAX_ABS_POTENTIAL: f64 = 1e100;
+
+/// Masses outside [1e-100, 1e100] overflow the kinetic prefactor.
+fn check_mass_range(m: f64, index: Option<usize>) -> std::result::Result<(), InputError> {
+    if (1e-100..=1e100).contains(&m) {
+        return Ok(());
+    }
+    let got = match index {
+        Some(i) => format!("{m:e} at index {i}"),
+        None => format!("{m:e}"),
+    };
+    Err(InputError::range("mass", "in [1e-100, 1e100]", got))
+}
+
 /// A real symmetric Hamiltonian on a basis.
 #[derive(Debug, Clone)]
 pub struct Hamiltonian {
@@ -53,9 +69,18 @@ impl Hamiltonian {
             .into());
         }
         check_finite("potential", &potential)?;
+        if let Some(i) = potential.iter().position(|v| v.abs() > MAX_ABS_POTENTIAL) {
+            return Err(InputError::range(
+                "potential",
+                format!("finite with |V| <= {MAX_ABS_POTENTIAL:e} (larger values overflow the eigensolver)"),
+                format!("{:e} at index {i}", potential[i]),
+            )
+            .into());
+        }
         let kinetic = match mass {
             Mass::Uniform(m) => {
                 check_positive("mass", m)?;
+                check_mass_range(m, None)?;
                 Kinetic::Uniform(units.kinetic_prefactor(m))
             }
             Mass::Profile(ms) => {
@@ -72,6 +97,9 @@ impl Hamiltonian {
                 }
                 if let Some(i) = ms.iter().position(|m| !(m.is_finite() && *m > 0.0)) {
                     return Err(InputError::range("mass", "finite and > 0 at every grid point", format!("{} at index {i}", ms[i])).into());
+                }
+                for (i, &m) in ms.iter().enumerate() {
+                    check_mass_range(m, Some(i))?;
                 }
                 Kinetic::Profile(ms.iter().map(|&m| units.kinetic_prefactor(m)).collect())
             }

@@ -16,8 +16,10 @@ use crate::error::InputError;
 
 /// CODATA 2018 exact and recommended values (SI).
 pub mod codata2018 {
-    /// Reduced Planck constant ħ, J s (exact: h/2π with h exact).
-    pub const HBAR: f64 = 1.054_571_817e-34;
+    /// Planck constant h, J s (exact since 2019).
+    pub const PLANCK: f64 = 6.626_070_15e-34;
+    /// Reduced Planck constant ħ = h/2π, J s (exact).
+    pub const HBAR: f64 = PLANCK / (2.0 * std::f64::consts::PI);
     /// Electron mass, kg.
     pub const ELECTRON_MASS: f64 = 9.109_383_7015e-31;
     /// Elementary charge, C (exact).

@@ -86,10 +86,18 @@ pub fn mat_t_to_py<'py>(py: Python<'py>, m: faer::MatRef<'_, f64>) -> Bound<'py,
     mat_to_py(py, m.transpose())
 }
 
-/// A non-negative integer argument with its allowed range.
-pub fn to_usize(value: i64, name: &str, min: usize, max: usize) -> PyResult<usize> {
-    if value < min as i64 || value > max as i64 {
-        return Err(PyValueError::new_err(format!("`{name}` must be an integer in [{min}, {max}]; got {value}")));
+/// An integer argument with its allowed range [min, max]. Python ints of any size
+/// (and numpy integers) are accepted; out-of-range values raise ValueError, non-integers
+/// TypeError, both naming the argument.
+pub fn to_usize(obj: &Bound<'_, PyAny>, name: &str, min: usize, max: usize) -> PyResult<usize> {
+    let index = obj.call_method0("__index__").map_err(|_| {
+        PyTypeError::new_err(format!("`{name}` must be an integer in [{min}, {max}]; got {}", type_name(obj)))
+    })?;
+    match index.extract::<i64>() {
+        Ok(v) if v >= min as i64 && v <= max as i64 => Ok(v as usize),
+        _ => Err(PyValueError::new_err(format!(
+            "`{name}` must be an integer in [{min}, {max}]; got {}",
+            index.str().map(|s| s.to_string()).unwrap_or_default()
+        ))),
     }
-    Ok(value as usize)
 }

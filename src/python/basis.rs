@@ -18,7 +18,13 @@ pub struct PyHermiteBasis {
 impl PyHermiteBasis {
     #[new]
     #[pyo3(signature = (size, center=0.0, length=1.0, quadrature=None))]
-    fn new(py: Python<'_>, size: i64, center: f64, length: f64, quadrature: Option<i64>) -> PyResult<Self> {
+    fn new(
+        py: Python<'_>,
+        size: &Bound<'_, PyAny>,
+        center: f64,
+        length: f64,
+        quadrature: Option<&Bound<'_, PyAny>>,
+    ) -> PyResult<Self> {
         let size = to_usize(size, "size", 1, hermite::MAX_SIZE)?;
         let quadrature = quadrature.map(|q| to_usize(q, "quadrature", size + 1, 4 * hermite::MAX_SIZE)).transpose()?;
         let inner = py.detach(|| HermiteBasis::new(size, center, length, quadrature)).py(py)?;
@@ -69,7 +75,7 @@ pub struct PyFourierGrid {
 #[pymethods]
 impl PyFourierGrid {
     #[new]
-    fn new(py: Python<'_>, start: f64, stop: f64, points: i64) -> PyResult<Self> {
+    fn new(py: Python<'_>, start: f64, stop: f64, points: &Bound<'_, PyAny>) -> PyResult<Self> {
         let points = to_usize(points, "points", 2, fourier::MAX_POINTS)?;
         let inner = py.detach(|| FourierGrid::new(start, stop, points)).py(py)?;
         Ok(PyFourierGrid { inner: Arc::new(inner) })

@@ -11,7 +11,6 @@ use crate::observables;
 use crate::units::Units;
 use numpy::{PyArray1, PyArray2};
 use num_complex::Complex64;
-use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 use std::sync::Arc;
 
@@ -20,8 +19,14 @@ pub fn potential_samples(obj: &Bound<'_, PyAny>, basis: &BasisRef, name: &str) -
     let points = basis.as_dyn().points();
     if obj.is_callable() {
         let x = PyArray1::from_slice(obj.py(), points);
+        // An exception raised by the user's callable propagates with its own type,
+        // plus a note (Python ≥ 3.11) saying which argument was being evaluated.
         let values = obj.call1((x,)).map_err(|e| {
-            PyTypeError::new_err(format!("`{name}` was called with the basis points (a float64 array) and raised: {e}"))
+            let _ = e.value(obj.py()).call_method1(
+                "add_note",
+                (format!("raised while evaluating `{name}` at the basis points (a float64 array)"),),
+            );
+            e
         })?;
         // A callable returning a scalar (e.g. lambda x: 0.0) means a constant potential.
         if let Ok(c) = values.extract::<f64>() {
@@ -99,10 +104,10 @@ impl PyHamiltonian {
     fn solve(
         &self,
         py: Python<'_>,
-        count: i64,
+        count: &Bound<'_, PyAny>,
         method: &str,
         tol: f64,
-        max_iter: Option<i64>,
+        max_iter: Option<&Bound<'_, PyAny>>,
         initial: Option<&Bound<'_, PyAny>>,
         seed: u64,
     ) -> PyResult<PySpectrum> {

@@ -16,9 +16,17 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
     m.add_function(wrap_pyfunction!(hamiltonian::eigh, m)?)?;
+    m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
     m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
     m.add("UNITS", crate::units::Units::CHOICES.to_vec())?;
     m.add("METHODS", crate::eigen::Method::CHOICES.to_vec())?;
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     Ok(())
+}
+
+/// (ħ²/2m_e, ħ) of a unit system: energy·length² and energy·time.
+#[pyfunction]
+fn unit_constants(units: &str) -> PyResult<(f64, f64)> {
+    let u = crate::units::Units::parse(units).map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
+    Ok((u.hbar2_over_2me(), u.hbar()))
 }
