@@ -8,7 +8,9 @@
 //! exactly the constant-mass Fourier-grid operator. Symmetric by construction.
 //! Energies and lengths are in the chosen [`Units`].
 
-use crate::basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
+use crate::basis::{Basis, BasisRef, FourierGrid, HermiteBasis, LayeredBasis};
+use crate::heterostructure::Heterostructure;
+use std::sync::Arc;
 use crate::error::{check_finite, check_positive, InputError, Result};
 use crate::units::Units;
 use faer::Mat;
@@ -52,6 +54,7 @@ fn check_mass_range(m: f64, index: Option<usize>) -> std::result::Result<(), Inp
 pub struct Hamiltonian {
     basis: BasisRef,
     potential: Vec<f64>,
+    mass: Mass,
     kinetic: Kinetic,
     units: Units,
 }
@@ -77,13 +80,17 @@ impl Hamiltonian {
             )
             .into());
         }
-        let kinetic = match mass {
+        let kinetic = match &mass {
             Mass::Uniform(m) => {
+                let m = *m;
                 check_positive("mass", m)?;
                 check_mass_range(m, None)?;
                 Kinetic::Uniform(units.kinetic_prefactor(m))
             }
             Mass::Profile(ms) => {
+                if matches!(basis, BasisRef::Layered(_)) {
+                    return Err(InputError::range("basis", "a HermiteBasis or FourierGrid (use Hamiltonian::layered for heterostructures)", "a LayeredBasis").into());
+                }
                 if !matches!(basis, BasisRef::Fourier(_)) {
                     return Err(InputError::range(
                         "mass",
@@ -104,7 +111,24 @@ impl Hamiltonian {
                 Kinetic::Profile(ms.iter().map(|&m| units.kinetic_prefactor(m)).collect())
             }
         };
-        Ok(Hamiltonian { basis, potential, kinetic, units })
+        Ok(Hamiltonian { basis, potential, mass, kinetic, units })
+    }
+
+    /// The BenDaniel-Duke Hamiltonian of a heterostructure on the box and size of `grid`
+    /// (exact layer integrals, mass coordinate; see [`crate::heterostructure`]).
+    /// `potential()` and `mass()` then hold the band edge and mass at the basis nodes.
+    pub fn layered(stack: &Heterostructure, grid: &FourierGrid, units: Units) -> Result<Self> {
+        let basis = Arc::new(LayeredBasis::new(stack, grid, units)?);
+        let nodes = basis.points().to_vec();
+        let potential = stack.potential(&nodes);
+        let masses = stack.mass(&nodes);
+        let kinetic = Kinetic::Profile(masses.iter().map(|&m| units.kinetic_prefactor(m)).collect());
+        Ok(Hamiltonian { basis: BasisRef::Layered(basis), potential, mass: Mass::Profile(masses), kinetic, units })
+    }
+
+    /// Whether the eigenproblem is generalized (A c = E B c, heterostructures).
+    pub fn is_generalized(&self) -> bool {
+        matches!(self.basis, BasisRef::Layered(_))
     }
 
     pub fn basis(&self) -> &BasisRef {
@@ -112,6 +136,10 @@ impl Hamiltonian {
     }
     pub fn potential(&self) -> &[f64] {
         &self.potential
+    }
+    /// The mass as given (for reconstruction and display).
+    pub fn mass(&self) -> &Mass {
+        &self.mass
     }
     pub fn kinetic(&self) -> &Kinetic {
         &self.kinetic
@@ -129,21 +157,41 @@ impl Hamiltonian {
         n * n * 8
     }
 
-    /// The dense N×N matrix (real symmetric).
+    /// The dense N×N matrix (real symmetric). For a heterostructure this is the
+    /// matrix A of the generalized problem A c = E B c (B: [`Hamiltonian::overlap`]).
     pub fn matrix(&self) -> Mat<f64> {
-        let b = self.basis.as_dyn();
-        let mut h = b.potential_matrix(&self.potential);
-        match (&self.kinetic, &self.basis) {
-            (Kinetic::Uniform(c), _) => {
+        match (&self.basis, &self.kinetic) {
+            (BasisRef::Hermite(b), Kinetic::Uniform(c)) => {
                 let t = b.neg_laplacian();
-                h += Mat::from_fn(t.nrows(), t.ncols(), |i, j| c * t[(i, j)]);
+                b.potential_matrix(&self.potential) + Mat::from_fn(t.nrows(), t.ncols(), |i, j| c * t[(i, j)])
             }
-            (Kinetic::Profile(cs), BasisRef::Fourier(g)) => {
-                h += variable_mass_kinetic(g, cs);
+            (BasisRef::Fourier(g), Kinetic::Uniform(c)) => {
+                let t = g.neg_laplacian();
+                g.potential_matrix(&self.potential) + Mat::from_fn(t.nrows(), t.ncols(), |i, j| c * t[(i, j)])
             }
-            (Kinetic::Profile(_), BasisRef::Hermite(_)) => unreachable_profile(),
+            (BasisRef::Fourier(g), Kinetic::Profile(cs)) => g.potential_matrix(&self.potential) + variable_mass_kinetic(g, cs),
+            (BasisRef::Layered(l), _) => l.problem().matrix_a_unchecked(),
+            (BasisRef::Hermite(_), Kinetic::Profile(_)) => unreachable_profile(),
         }
-        h
+    }
+
+    /// The overlap (mass) matrix B of a generalized problem; `None` when B = I.
+    pub fn overlap(&self) -> Option<Mat<f64>> {
+        match &self.basis {
+            BasisRef::Layered(l) => Some(l.problem().matrix_b_unchecked()),
+            _ => None,
+        }
+    }
+
+    /// y = B x (the identity except for heterostructures).
+    pub fn apply_overlap_block(&self, x: &[f64], y: &mut [f64], ncols: usize) {
+        match &self.basis {
+            BasisRef::Layered(l) => l.problem().apply_b(x, y, ncols),
+            _ => {
+                let n = self.size() * ncols;
+                y[..n].copy_from_slice(&x[..n]);
+            }
+        }
     }
 
     /// y = H x for `ncols` columns stored column-major (column j is x[j*N..(j+1)*N]).
@@ -177,6 +225,7 @@ impl Hamiltonian {
                 }
             }
             BasisRef::Hermite(b) => hermite_apply(b, &self.kinetic, &self.potential, x, y, ncols),
+            BasisRef::Layered(l) => l.problem().apply_a(x, y, ncols),
         }
     }
 
@@ -303,7 +352,6 @@ fn hermite_apply(b: &HermiteBasis, kinetic: &Kinetic, v: &[f64], x: &[f64], y: &
 #[cfg(test)]
 mod tests {
     use super::*;
-    use std::sync::Arc;
 
     fn max_abs_diff(a: &[f64], b: &[f64]) -> f64 {
         a.iter().zip(b).map(|(x, y)| (x - y).abs()).fold(0.0, f64::max)

@@ -25,7 +25,9 @@ pub mod basis;
 pub mod eigen;
 pub mod error;
 pub mod hamiltonian;
+pub mod heterostructure;
 pub mod observables;
+pub mod propagate;
 pub mod units;
 
 mod python;

@@ -2,8 +2,8 @@
 
 use crate::basis::{BasisRef, HermiteBasis};
 use crate::eigen::Spectrum;
-use crate::error::{InputError, Result};
-use crate::hamiltonian::Kinetic;
+use crate::error::Result;
+use crate::hamiltonian::Mass;
 use faer::Mat;
 
 /// ⟨i|x|j⟩ between the states of the spectrum (length units), count × count.
@@ -11,14 +11,30 @@ use faer::Mat;
 /// Hermite basis: exact through x = center + L·ξ̂ with ⟨n+1|ξ̂|n⟩ = sqrt((n+1)/2).
 /// Fourier grid: Σ_j c_j x_j c'_j, the position on the box [start, stop) — meaningful
 /// for states localised away from the box edges.
-pub fn dipole_matrix(s: &Spectrum) -> Mat<f64> {
+/// Heterostructure: ∫ψ_i z ψ_j dz from exact layer integrals in the mass coordinate.
+pub fn dipole_matrix(s: &Spectrum) -> Result<Mat<f64>> {
     let v = &s.vectors;
     let n = v.nrows();
     let xv: Mat<f64> = match &s.basis {
         BasisRef::Fourier(g) => Mat::from_fn(n, v.ncols(), |i, j| g.x()[i] * v[(i, j)]),
         BasisRef::Hermite(b) => hermite_x_times(b, v),
+        BasisRef::Layered(l) => return Ok(l.problem().position_matrix(v.as_ref())?),
     };
-    v.transpose() * xv
+    Ok(v.transpose() * xv)
+}
+
+/// ⟨i|m(x)|i⟩ for every state (mass units): the mass a state "sees".
+/// Fourier grid: Σ_j c_j² m(x_j); heterostructure: ∫|ψ|² m dz = ∫|ψ|² ds = Σ_j c_j².
+pub fn mean_masses(s: &Spectrum) -> Vec<f64> {
+    let v = &s.vectors;
+    let n = v.nrows();
+    (0..v.ncols())
+        .map(|j| match (&s.basis, &s.mass) {
+            (_, Mass::Uniform(m)) => *m,
+            (BasisRef::Layered(_), _) => (0..n).map(|i| v[(i, j)] * v[(i, j)]).sum(),
+            (_, Mass::Profile(ms)) => (0..n).map(|i| v[(i, j)] * v[(i, j)] * ms[i]).sum(),
+        })
+        .collect()
 }
 
 fn hermite_x_times(b: &HermiteBasis, v: &Mat<f64>) -> Mat<f64> {
@@ -36,21 +52,14 @@ fn hermite_x_times(b: &HermiteBasis, v: &Mat<f64>) -> Mat<f64> {
     })
 }
 
-/// Oscillator strengths f_ij = (2m/ħ²)(E_j − E_i)|⟨i|x|j⟩|² (dimensionless, effective-mass
-/// form; Thomas-Reiche-Kuhn: Σ_j f_ij = 1 over a complete set). Needs a uniform mass.
+/// Oscillator strengths f_ij = (2m_i/ħ²)(E_j − E_i)|⟨i|x|j⟩|² (dimensionless,
+/// effective-mass form; Thomas-Reiche-Kuhn: Σ_j f_ij = 1 over a complete set for a
+/// uniform mass). With a position-dependent mass, m_i = ⟨i|m|i⟩ ([`mean_masses`]),
+/// a common effective-mass approximation: the sum rule then holds only approximately.
 pub fn oscillator_strengths(s: &Spectrum) -> Result<Mat<f64>> {
-    let c = match &s.kinetic {
-        Kinetic::Uniform(c) => *c,
-        Kinetic::Profile(_) => {
-            return Err(InputError::range(
-                "mass",
-                "uniform for oscillator_strengths() (position-dependent mass needs the mass-weighted form)",
-                "a mass profile",
-            )
-            .into())
-        }
-    };
-    let d = dipole_matrix(s);
+    let d = dipole_matrix(s)?;
+    let masses = mean_masses(s);
     let k = s.count();
-    Ok(Mat::from_fn(k, k, |i, j| (s.energies[j] - s.energies[i]) * d[(i, j)] * d[(i, j)] / c))
+    let h2m = s.units.hbar2_over_2me();
+    Ok(Mat::from_fn(k, k, |i, j| (s.energies[j] - s.energies[i]) * d[(i, j)] * d[(i, j)] * masses[i] / h2m))
 }

@@ -132,6 +132,16 @@ impl FourierGrid {
         Mat::from_fn(n, n, |j, l| column[(j + n - l) % n])
     }
 
+    /// The N×N matrix of −d²/dx² (exact in k, circulant, real symmetric).
+    pub fn neg_laplacian(&self) -> Mat<f64> {
+        FourierGrid::circulant_matrix(&self.circulant_column(|k| k * k))
+    }
+
+    /// The N×N matrix of a multiplicative potential sampled on the grid (diagonal).
+    pub fn potential_matrix(&self, v: &[f64]) -> Mat<f64> {
+        Mat::from_fn(self.len(), self.len(), |i, j| if i == j { v[i] } else { 0.0 })
+    }
+
     /// Trigonometric interpolation of grid states (columns of `values`, samples ψ(x_j))
     /// at arbitrary points; the Nyquist term enters as a cosine so real data stay real.
     pub fn interpolate(&self, values: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
@@ -182,16 +192,11 @@ impl Basis for FourierGrid {
     fn points(&self) -> &[f64] {
         &self.x
     }
-    fn neg_laplacian(&self) -> Mat<f64> {
-        FourierGrid::circulant_matrix(&self.circulant_column(|k| k * k))
-    }
-    fn potential_matrix(&self, v: &[f64]) -> Mat<f64> {
-        Mat::from_fn(self.len(), self.len(), |i, j| if i == j { v[i] } else { 0.0 })
-    }
-    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
+    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Result<Mat<f64>, InputError> {
+        check_finite("x", x)?;
         let scale = 1.0 / self.dx.sqrt();
         let values = Mat::from_fn(coefs.nrows(), coefs.ncols(), |i, j| coefs[(i, j)] * scale);
-        self.interpolate(values.as_ref(), x)
+        Ok(self.interpolate(values.as_ref(), x))
     }
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         coefs.to_owned()

@@ -14,7 +14,7 @@
 
 use super::hermite_math::{gauss_hermite, hermite_functions};
 use super::Basis;
-use crate::error::InputError;
+use crate::error::{check_finite, InputError};
 use faer::{Mat, MatRef};
 use rayon::prelude::*;
 
@@ -94,6 +94,28 @@ impl HermiteBasis {
         self.phi.as_ref()
     }
 
+    /// The N×N matrix of −d²/dx² = p̂²/L² (exact, pentadiagonal).
+    pub fn neg_laplacian(&self) -> Mat<f64> {
+        let s = 1.0 / (self.length * self.length);
+        let p2 = HermiteBasis::p_squared(self.size);
+        Mat::from_fn(self.size, self.size, |i, j| s * p2[(i, j)])
+    }
+    /// The N×N matrix of V, sampled on the quadrature points: Φ·diag(V)·Φᵀ.
+    pub fn potential_matrix(&self, v: &[f64]) -> Mat<f64> {
+        // Φ diag(V) Φᵀ: scale columns of Φ by V, then one GEMM.
+        let scaled = Mat::from_fn(self.size, self.nodes.len(), |n, k| self.phi[(n, k)] * v[k]);
+        let mut out = &scaled * self.phi.transpose();
+        // Symmetrise against rounding in the product.
+        for i in 0..self.size {
+            for j in 0..i {
+                let a = 0.5 * (out[(i, j)] + out[(j, i)]);
+                out[(i, j)] = a;
+                out[(j, i)] = a;
+            }
+        }
+        out
+    }
+
     /// The matrix of the dimensionless p̂² = −d²/dξ² in the first N functions.
     pub fn p_squared(size: usize) -> Mat<f64> {
         Mat::from_fn(size, size, |i, j| {
@@ -116,26 +138,8 @@ impl Basis for HermiteBasis {
     fn points(&self) -> &[f64] {
         &self.x
     }
-    fn neg_laplacian(&self) -> Mat<f64> {
-        let s = 1.0 / (self.length * self.length);
-        let p2 = HermiteBasis::p_squared(self.size);
-        Mat::from_fn(self.size, self.size, |i, j| s * p2[(i, j)])
-    }
-    fn potential_matrix(&self, v: &[f64]) -> Mat<f64> {
-        // Φ diag(V) Φᵀ: scale columns of Φ by V, then one GEMM.
-        let scaled = Mat::from_fn(self.size, self.nodes.len(), |n, k| self.phi[(n, k)] * v[k]);
-        let mut out = &scaled * self.phi.transpose();
-        // Symmetrise against rounding in the product.
-        for i in 0..self.size {
-            for j in 0..i {
-                let a = 0.5 * (out[(i, j)] + out[(j, i)]);
-                out[(i, j)] = a;
-                out[(j, i)] = a;
-            }
-        }
-        out
-    }
-    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
+    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Result<Mat<f64>, InputError> {
+        check_finite("x", x)?;
         let n = self.size;
         let ncols = coefs.ncols();
         let scale = 1.0 / self.length.sqrt();
@@ -149,7 +153,7 @@ impl Basis for HermiteBasis {
                 },
             )
             .collect();
-        Mat::from_fn(x.len(), ncols, |i, j| rows[i][j])
+        Ok(Mat::from_fn(x.len(), ncols, |i, j| rows[i][j]))
     }
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         // ψ(x_k)·sqrt(λ_k L): same sign as ψ at the nodes.

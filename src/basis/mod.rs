@@ -9,13 +9,19 @@
 //! * [`FourierGrid`]: the Fourier-grid (discrete variable) basis of a periodic
 //!   box; potentials are sampled on the grid points and the coefficients are
 //!   c_j = ψ(x_j)·sqrt(dx).
+//! * [`LayeredBasis`]: periodic sinc functions in the mass coordinate s = ∫m dz of a
+//!   heterostructure (generalized problem A c = E B c; coefficients B-orthonormal).
 
 pub mod fourier;
 pub mod hermite;
 pub mod hermite_math;
+pub mod layered;
 
 pub use fourier::FourierGrid;
 pub use hermite::HermiteBasis;
+pub use layered::LayeredBasis;
+
+use crate::error::InputError;
 
 use faer::{Mat, MatRef};
 use std::sync::Arc;
@@ -26,13 +32,9 @@ pub trait Basis: Send + Sync {
     fn size(&self) -> usize;
     /// Points at which a multiplicative potential is sampled (length set by the basis).
     fn points(&self) -> &[f64];
-    /// The N×N matrix of −d²/dx² (length⁻²), real symmetric positive semidefinite.
-    fn neg_laplacian(&self) -> Mat<f64>;
-    /// The N×N matrix of the multiplicative operator V(x), V given on [`Basis::points`].
-    fn potential_matrix(&self, v: &[f64]) -> Mat<f64>;
     /// Values ψ_j(x_i) of the states whose coefficients are the columns of `coefs`,
     /// as a `x.len() × coefs.ncols()` matrix.
-    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Mat<f64>;
+    fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Result<Mat<f64>, InputError>;
     /// Values of the states at [`Basis::points`] up to a positive factor per point
     /// (used for the sign convention and for plotting on the native points).
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64>;
@@ -46,6 +48,8 @@ pub trait Basis: Send + Sync {
 pub enum BasisRef {
     Hermite(Arc<HermiteBasis>),
     Fourier(Arc<FourierGrid>),
+    /// A heterostructure's mass-coordinate basis (BenDaniel-Duke, generalized problem).
+    Layered(Arc<LayeredBasis>),
 }
 
 impl BasisRef {
@@ -53,6 +57,7 @@ impl BasisRef {
         match self {
             BasisRef::Hermite(b) => b.as_ref(),
             BasisRef::Fourier(g) => g.as_ref(),
+            BasisRef::Layered(l) => l.as_ref(),
         }
     }
 }

@@ -29,6 +29,9 @@ pub fn lowest(h: &Hamiltonian, count: usize, par: Par) -> Result<(Vec<f64>, Mat<
         3 * h.dense_bytes(),
         "the dense path needs about three N×N float64 arrays; use method=\"iterative\" for the lowest states of a large grid",
     )?;
+    if let crate::basis::BasisRef::Layered(l) = h.basis() {
+        return l.problem().solve_dense(count, par);
+    }
     let m = h.matrix();
     let (vals, u) = eigh(m.as_ref(), par)?;
     let v = u.subcols(0, count).to_owned();

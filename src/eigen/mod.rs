@@ -5,7 +5,7 @@ pub mod dense;
 
 use crate::basis::{fix_signs, BasisRef};
 use crate::error::{InputError, Result};
-use crate::hamiltonian::{Hamiltonian, Kinetic};
+use crate::hamiltonian::{Hamiltonian, Kinetic, Mass};
 use crate::units::Units;
 use faer::Mat;
 
@@ -85,6 +85,7 @@ impl SolveOptions {
 pub struct Spectrum {
     pub basis: BasisRef,
     pub units: Units,
+    pub mass: Mass,
     pub kinetic: Kinetic,
     pub energies: Vec<f64>,
     pub vectors: Mat<f64>,
@@ -98,7 +99,7 @@ impl Spectrum {
         self.energies.len()
     }
     /// ψ_n(x_i) for all states, `x.len() × count`, normalised ∫|ψ|² dx = 1.
-    pub fn wavefunctions(&self, x: &[f64]) -> Mat<f64> {
+    pub fn wavefunctions(&self, x: &[f64]) -> std::result::Result<Mat<f64>, InputError> {
         self.basis.as_dyn().evaluate(self.vectors.as_ref(), x)
     }
 }
@@ -119,7 +120,8 @@ pub fn check_tol(tol: f64) -> std::result::Result<(), InputError> {
     Ok(())
 }
 
-/// Residual norms ‖H v_j − E_j v_j‖ of the columns of `vectors`.
+/// Residual norms ‖H v_j − E_j B v_j‖ of the columns of `vectors` (B = I except for
+/// heterostructures).
 pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f64> {
     let n = vectors.nrows();
     let k = vectors.ncols();
@@ -131,11 +133,13 @@ pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f
     }
     let mut y = vec![0.0; n * k];
     h.apply_block(&x, &mut y, k);
+    let mut bx = vec![0.0; n * k];
+    h.apply_overlap_block(&x, &mut bx, k);
     (0..k)
         .map(|j| {
             (0..n)
                 .map(|i| {
-                    let r = y[j * n + i] - energies[j] * x[j * n + i];
+                    let r = y[j * n + i] - energies[j] * bx[j * n + i];
                     r * r
                 })
                 .sum::<f64>()
@@ -163,6 +167,7 @@ pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
     Ok(Spectrum {
         basis: h.basis().clone(),
         units: h.units(),
+        mass: h.mass().clone(),
         kinetic: h.kinetic().clone(),
         energies,
         vectors,

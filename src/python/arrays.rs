@@ -101,3 +101,23 @@ pub fn to_usize(obj: &Bound<'_, PyAny>, name: &str, min: usize, max: usize) -> P
         ))),
     }
 }
+
+/// A real or complex array of any shape as (shape, complex128 data in C order).
+pub fn complex_array(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<usize>, Vec<num_complex::Complex64>)> {
+    let (arr, _) = as_ndarray(obj, name, true)?;
+    let arr = arr.call_method1("astype", ("complex128",))?;
+    let np = obj.py().import("numpy")?;
+    let arr = np.call_method1("ascontiguousarray", (arr,))?;
+    let shape: Vec<usize> = arr.getattr("shape")?.extract()?;
+    let flat = arr.call_method0("ravel")?;
+    let flat = flat
+        .cast_into::<PyArray1<num_complex::Complex64>>()
+        .map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    let data = flat.readonly().as_array().to_vec();
+    if let Some(i) = data.iter().position(|z| !(z.re.is_finite() && z.im.is_finite())) {
+        return Err(PyValueError::new_err(format!(
+            "`{name}` must contain only finite numbers; found NaN or inf at flat index {i}"
+        )));
+    }
+    Ok((shape, data))
+}

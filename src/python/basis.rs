@@ -4,8 +4,10 @@ use super::arrays::to_usize;
 use super::errors::IntoPyResult;
 use crate::basis::{fourier, hermite, Basis, BasisRef, FourierGrid, HermiteBasis};
 use numpy::PyArray1;
+use super::display::key_value_table;
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
+use pyo3::types::PyType;
 use std::sync::Arc;
 
 /// Gauss-Hermite function basis χ_n(x) = ψ_n((x − center)/length)/sqrt(length).
@@ -64,6 +66,23 @@ impl PyHermiteBasis {
     fn __repr__(&self) -> String {
         self.inner.describe()
     }
+    fn _repr_html_(&self) -> String {
+        let b = &self.inner;
+        key_value_table(
+            "HermiteBasis",
+            &[
+                ("size", b.size().to_string()),
+                ("center", b.center().to_string()),
+                ("length", b.length().to_string()),
+                ("quadrature nodes", b.quadrature().to_string()),
+                ("x range of nodes", format!("[{:.4}, {:.4}]", b.points()[0], b.points()[b.points().len() - 1])),
+            ],
+        )
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (usize, f64, f64, usize)) {
+        let b = &slf.get().inner;
+        (slf.get_type(), (b.size(), b.center(), b.length(), b.quadrature()))
+    }
 }
 
 /// Periodic Fourier grid on [start, stop) with `points` points.
@@ -117,6 +136,22 @@ impl PyFourierGrid {
     fn __repr__(&self) -> String {
         self.inner.describe()
     }
+    fn _repr_html_(&self) -> String {
+        let g = &self.inner;
+        key_value_table(
+            "FourierGrid",
+            &[
+                ("box", format!("[{}, {})", g.start(), g.stop())),
+                ("points", g.len().to_string()),
+                ("dx", format!("{:.6e}", g.dx())),
+                ("k max", format!("{:.6e}", std::f64::consts::PI / g.dx())),
+            ],
+        )
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (f64, f64, usize)) {
+        let g = &slf.get().inner;
+        (slf.get_type(), (g.start(), g.stop(), g.len()))
+    }
 }
 
 /// Accept a HermiteBasis or a FourierGrid as `name`.
@@ -138,5 +173,7 @@ pub fn basis_to_py(py: Python<'_>, b: &BasisRef) -> PyResult<Py<PyAny>> {
     Ok(match b {
         BasisRef::Hermite(h) => Py::new(py, PyHermiteBasis { inner: h.clone() })?.into_any(),
         BasisRef::Fourier(g) => Py::new(py, PyFourierGrid { inner: g.clone() })?.into_any(),
+        // A heterostructure's basis is presented as the grid (box and size) it was built on.
+        BasisRef::Layered(l) => Py::new(py, PyFourierGrid { inner: Arc::new(l.problem().grid().clone()) })?.into_any(),
     })
 }

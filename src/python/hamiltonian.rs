@@ -6,12 +6,17 @@ use super::errors::IntoPyResult;
 use crate::basis::BasisRef;
 use crate::eigen::{self, Method, SolveOptions, Spectrum};
 use crate::error::check_memory;
-use crate::hamiltonian::{Hamiltonian, Mass};
+use crate::hamiltonian::{Hamiltonian, Kinetic, Mass};
+use crate::heterostructure::Heterostructure;
+use super::layers::PyHeterostructure;
+use pyo3::exceptions::PyTypeError;
 use crate::observables;
 use crate::units::Units;
 use numpy::{PyArray1, PyArray2};
 use num_complex::Complex64;
+use super::display::{key_value_table, table, unit_suffix};
 use pyo3::prelude::*;
+use pyo3::types::{PyFloat, PyTuple, PyType};
 use std::sync::Arc;
 
 /// Samples of a potential on the basis points: a vectorised callable f(x) or an array.
@@ -67,6 +72,9 @@ impl PyHamiltonian {
     ) -> PyResult<Self> {
         let units = Units::parse(units).py(py)?;
         let b = extract_basis(basis, "basis")?;
+        if let Ok(stack) = potential.cast::<PyHeterostructure>() {
+            return layered_hamiltonian(py, &b, &stack.get().inner, mass, units);
+        }
         let v = potential_samples(potential, &b, "potential")?;
         let m = match mass {
             None => Mass::Uniform(1.0),
@@ -82,6 +90,18 @@ impl PyHamiltonian {
         check_memory("Hamiltonian.matrix", 2 * h.dense_bytes(), "the matrix does not fit; use apply() or solve(method=\"iterative\")").py(py)?;
         let m = py.detach(move || h.matrix());
         Ok(mat_to_py(py, m.as_ref()))
+    }
+
+    /// The overlap matrix B of a heterostructure's generalized problem A c = E B c
+    /// (None for the other bases, where B = I).
+    fn overlap_matrix<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyArray2<f64>>>> {
+        if !self.inner.is_generalized() {
+            return Ok(None);
+        }
+        let h = self.inner.clone();
+        check_memory("Hamiltonian.overlap_matrix", 2 * h.dense_bytes(), "the matrix does not fit").py(py)?;
+        let m = py.detach(move || h.overlap());
+        Ok(m.map(|m| mat_to_py(py, m.as_ref())))
     }
 
     /// H·psi (matrix-free). `psi`: real or complex, length N.
@@ -144,8 +164,137 @@ impl PyHamiltonian {
         self.inner.size()
     }
     fn __repr__(&self) -> String {
-        format!("Hamiltonian({}, units={:?})", self.inner.basis().as_dyn().describe(), self.inner.units().name())
+        format!(
+            "Hamiltonian({}, mass={}, units={:?})",
+            self.inner.basis().as_dyn().describe(),
+            mass_text(self.inner.mass()),
+            self.inner.units().name()
+        )
     }
+    fn _repr_html_(&self) -> String {
+        let h = &self.inner;
+        let sym = h.units().symbols();
+        let v = h.potential();
+        let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        key_value_table(
+            "Hamiltonian",
+            &[
+                ("basis", h.basis().as_dyn().describe()),
+                ("units", h.units().name().to_string()),
+                ("mass", format!("{}{}", mass_text(h.mass()), unit_suffix(sym[2]))),
+                ("potential range", format!("[{lo:.6}, {hi:.6}]{}", unit_suffix(sym[1]))),
+                ("dimension", h.size().to_string()),
+            ],
+        )
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyType>, (Py<PyAny>, Py<PyAny>, Py<PyAny>, &'static str))> {
+        let py = slf.py();
+        let h = &slf.get().inner;
+        if let BasisRef::Layered(l) = h.basis() {
+            let stack = Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?.into_any();
+            return Ok((slf.get_type(), (basis_to_py(py, h.basis())?, stack, py.None(), h.units().name())));
+        }
+        Ok((
+            slf.get_type(),
+            (basis_to_py(py, h.basis())?, PyArray1::from_slice(py, h.potential()).into_any().unbind(), mass_to_py(py, h.mass()), h.units().name()),
+        ))
+    }
+}
+
+fn mass_text(m: &Mass) -> String {
+    match m {
+        Mass::Uniform(m) => format!("{m}"),
+        Mass::Profile(ms) => {
+            let (lo, hi) = ms.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+            format!("profile in [{lo}, {hi}]")
+        }
+    }
+}
+
+fn mass_to_py(py: Python<'_>, m: &Mass) -> Py<PyAny> {
+    match m {
+        Mass::Uniform(m) => PyFloat::new(py, *m).into_any().unbind(),
+        Mass::Profile(ms) => PyArray1::from_slice(py, ms).into_any().unbind(),
+    }
+}
+
+/// Rebuild a Spectrum from its parts (the target of `Spectrum.__reduce__` and `specwell.load`).
+#[pyfunction]
+#[allow(clippy::too_many_arguments)]
+pub fn _spectrum_from_parts(
+    py: Python<'_>,
+    basis: &Bound<'_, PyAny>,
+    units: &str,
+    mass: &Bound<'_, PyAny>,
+    energies: &Bound<'_, PyAny>,
+    vectors: &Bound<'_, PyAny>,
+    residuals: &Bound<'_, PyAny>,
+    method: &str,
+    iterations: usize,
+) -> PyResult<PySpectrum> {
+    let units = Units::parse(units).py(py)?;
+    // A (grid, Heterostructure) pair stands for a heterostructure's basis.
+    let (b, mass) = match basis.extract::<(Bound<'_, PyAny>, Bound<'_, PyAny>)>() {
+        Ok((grid, stack)) => {
+            let stack = stack.cast::<PyHeterostructure>().map_err(|_| PyTypeError::new_err("`basis` pair must be (FourierGrid, Heterostructure)"))?;
+            let h = layered_hamiltonian(py, &extract_basis(&grid, "basis")?, &stack.get().inner, None, units)?;
+            (h.inner.basis().clone(), h.inner.mass().clone())
+        }
+        Err(_) => {
+            let b = extract_basis(basis, "basis")?;
+            let m = extract_mass(mass, &b)?;
+            (b, m)
+        }
+    };
+    let n = b.as_dyn().size();
+    let energies = vec_f64(energies, "energies", None)?;
+    let residuals = vec_f64(residuals, "residuals", Some(energies.len()))?;
+    let (count, cols, data) = super::arrays::mat_f64(vectors, "vectors")?;
+    if count != energies.len() || cols != n {
+        return Err(pyo3::exceptions::PyValueError::new_err(format!(
+            "`vectors` must have shape ({}, {n}); got ({count}, {cols})",
+            energies.len()
+        )));
+    }
+    let method = Method::parse(method).py(py)?;
+    let kinetic = match &mass {
+        Mass::Uniform(m) => Kinetic::Uniform(units.kinetic_prefactor(*m)),
+        Mass::Profile(ms) => Kinetic::Profile(ms.iter().map(|&m| units.kinetic_prefactor(m)).collect()),
+    };
+    let s = Spectrum {
+        basis: b,
+        units,
+        mass,
+        kinetic,
+        energies,
+        vectors: faer::Mat::from_fn(n, count, |i, j| data[j * n + i]),
+        residuals,
+        method,
+        iterations,
+    };
+    Ok(PySpectrum { inner: Arc::new(s) })
+}
+
+/// A heterostructure on a FourierGrid (box and number of modes); the mass comes from the layers.
+fn layered_hamiltonian(
+    py: Python<'_>,
+    basis: &BasisRef,
+    stack: &Arc<Heterostructure>,
+    mass: Option<&Bound<'_, PyAny>>,
+    units: Units,
+) -> PyResult<PyHamiltonian> {
+    let grid = match basis {
+        BasisRef::Fourier(g) => g.clone(),
+        _ => return Err(PyTypeError::new_err("`basis` must be a specwell.FourierGrid for a Heterostructure potential")),
+    };
+    if mass.is_some() {
+        return Err(pyo3::exceptions::PyValueError::new_err(
+            "`mass` must be omitted for a Heterostructure potential (each layer carries its own mass)",
+        ));
+    }
+    let stack = stack.clone();
+    let h = py.detach(move || Hamiltonian::layered(&stack, &grid, units)).py(py)?;
+    Ok(PyHamiltonian { inner: Arc::new(h) })
 }
 
 /// Warm-start block: a Spectrum, or an array (k, N) of vectors in the basis.
@@ -201,6 +350,16 @@ impl PySpectrum {
     fn count(&self) -> usize {
         self.inner.count()
     }
+    /// The mass as given to the Hamiltonian (float or grid array); used by `specwell.save`.
+    #[getter]
+    fn _mass(&self, py: Python<'_>) -> Py<PyAny> {
+        mass_to_py(py, &self.inner.mass)
+    }
+    /// Save to a `.npz` file (see `specwell.save`).
+    fn save(slf: &Bound<'_, Self>, path: &Bound<'_, PyAny>) -> PyResult<()> {
+        slf.py().import("specwell.io")?.call_method1("save", (slf, path))?;
+        Ok(())
+    }
     #[getter]
     fn method(&self) -> &'static str {
         self.inner.method.name()
@@ -229,12 +388,13 @@ impl PySpectrum {
             }
         };
         let s = self.inner.clone();
-        let w = py.detach(move || s.wavefunctions(&xs));
+        let w = py.detach(move || s.wavefunctions(&xs)).py(py)?;
         Ok(mat_t_to_py(py, w.as_ref()))
     }
     /// ⟨i|x|j⟩, shape (count, count), length units.
-    fn dipole_matrix<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
-        mat_to_py(py, observables::dipole_matrix(&self.inner).as_ref())
+    fn dipole_matrix<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let d = observables::dipole_matrix(&self.inner).py(py)?;
+        Ok(mat_to_py(py, d.as_ref()))
     }
     /// f_ij = (2m/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
     fn oscillator_strengths<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
@@ -243,6 +403,48 @@ impl PySpectrum {
     }
     fn __len__(&self) -> usize {
         self.inner.count()
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
+        let py = slf.py();
+        let s = &slf.get().inner;
+        let rebuild = py.import("specwell._core")?.getattr("_spectrum_from_parts")?;
+        let basis = match &s.basis {
+            BasisRef::Layered(l) => {
+                let stack = Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?.into_any();
+                PyTuple::new(py, [basis_to_py(py, &s.basis)?, stack])?.into_any().unbind()
+            }
+            _ => basis_to_py(py, &s.basis)?,
+        };
+        let args = PyTuple::new(
+            py,
+            [
+                basis,
+                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                mass_to_py(py, &s.mass),
+                PyArray1::from_slice(py, &s.energies).into_any().unbind(),
+                mat_t_to_py(py, s.vectors.as_ref()).into_any().unbind(),
+                PyArray1::from_slice(py, &s.residuals).into_any().unbind(),
+                s.method.name().into_pyobject(py)?.into_any().unbind(),
+                s.iterations.into_pyobject(py)?.into_any().unbind(),
+            ],
+        )?;
+        Ok((rebuild, args))
+    }
+    fn _repr_html_(&self) -> String {
+        let s = &self.inner;
+        let sym = s.units.symbols();
+        let eu = unit_suffix(sym[1]);
+        let header = vec!["n".to_string(), format!("E{eu}"), format!("E − E₀{eu}"), format!("residual{eu}")];
+        let e0 = s.energies.first().cloned().unwrap_or(0.0);
+        let rows: Vec<Vec<String>> = s
+            .energies
+            .iter()
+            .zip(&s.residuals)
+            .enumerate()
+            .map(|(n, (e, r))| vec![n.to_string(), format!("{e:.10}"), format!("{:.10}", e - e0), format!("{r:.1e}")])
+            .collect();
+        let title = format!("Spectrum: {} states, {} method, {}", s.count(), s.method.name(), s.basis.as_dyn().describe());
+        table(&title, &header, &rows, 50)
     }
     fn __repr__(&self) -> String {
         let unit = self.inner.units.symbols()[1];

@@ -3,8 +3,11 @@
 
 mod arrays;
 mod basis;
+mod display;
 mod errors;
 mod hamiltonian;
+mod layers;
+mod propagate;
 
 use pyo3::prelude::*;
 
@@ -15,8 +18,14 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<basis::PyFourierGrid>()?;
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
+    m.add_class::<layers::PyLayer>()?;
+    m.add_class::<layers::PyHeterostructure>()?;
+    m.add_class::<propagate::PySplitStep>()?;
+    m.add_class::<propagate::PyRun>()?;
+    m.add_function(wrap_pyfunction!(propagate::_split_step_from_parts, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::eigh, m)?)?;
     m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
+    m.add_function(wrap_pyfunction!(hamiltonian::_spectrum_from_parts, m)?)?;
     m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
     m.add("UNITS", crate::units::Units::CHOICES.to_vec())?;
     m.add("METHODS", crate::eigen::Method::CHOICES.to_vec())?;

@@ -1,0 +1,90 @@
+"""Save and load results as ``.npz`` files: plain arrays plus a small JSON header,
+readable with ``numpy.load`` alone (no pickle needed to get the data back)."""
+
+from __future__ import annotations
+
+import json
+import os
+from typing import Union
+
+import numpy as np
+
+from specwell import _core
+
+__all__ = ["save", "load"]
+
+_FORMAT = "specwell-npz"
+_VERSION = 1
+
+
+def _basis_header(basis) -> dict:
+    if isinstance(basis, _core.HermiteBasis):
+        return {"kind": "HermiteBasis", "size": basis.size, "center": basis.center,
+                "length": basis.length, "quadrature": basis.quadrature}
+    if isinstance(basis, _core.FourierGrid):
+        return {"kind": "FourierGrid", "start": basis.start, "stop": basis.stop, "points": basis.points}
+    raise TypeError(f"`basis` must be a HermiteBasis or FourierGrid; got {type(basis).__name__}")
+
+
+def _basis_from_header(h: dict):
+    if h["kind"] == "HermiteBasis":
+        return _core.HermiteBasis(h["size"], h["center"], h["length"], h["quadrature"])
+    if h["kind"] == "FourierGrid":
+        return _core.FourierGrid(h["start"], h["stop"], h["points"])
+    raise ValueError(f"unknown basis kind {h['kind']!r} in file")
+
+
+def save(result, path: Union[str, os.PathLike]) -> None:
+    """Save a Spectrum (or any result with a ``_save_arrays()`` method) to ``path`` (.npz).
+
+    Parameters
+    ----------
+    result : Spectrum
+        The result to save.
+    path : str or path-like
+        Destination; numpy appends ``.npz`` if missing.
+    """
+    if isinstance(result, _core.Spectrum):
+        header = {"format": _FORMAT, "version": _VERSION, "type": "Spectrum", "units": result.units,
+                  "method": result.method, "iterations": result.iterations,
+                  "basis": _basis_header(result.basis), "mass_is_array": False}
+        mass = result._mass
+        arrays = dict(energies=result.energies, vectors=result.vectors, residuals=result.residuals,
+                      x=result.x)
+        if isinstance(mass, np.ndarray):
+            header["mass_is_array"] = True
+            arrays["mass"] = mass
+        else:
+            header["mass"] = float(mass)
+    elif hasattr(result, "_save_arrays"):
+        header, arrays = result._save_arrays()
+        header = dict(header, format=_FORMAT, version=_VERSION)
+    else:
+        raise TypeError(f"`result` must be a specwell result (Spectrum, Run, ...); got {type(result).__name__}")
+    np.savez(path, header=np.array(json.dumps(header)), **arrays)
+
+
+def load(path: Union[str, os.PathLike]):
+    """Load a result written by :func:`save`.
+
+    Returns
+    -------
+    Spectrum or another specwell result
+    """
+    with np.load(path, allow_pickle=False) as f:
+        header = json.loads(str(f["header"]))
+        if header.get("format") != _FORMAT:
+            raise ValueError(f"`path` is not a specwell result file (format {header.get('format')!r})")
+        kind = header["type"]
+        if kind == "Spectrum":
+            basis = _basis_from_header(header["basis"])
+            mass = f["mass"] if header["mass_is_array"] else header["mass"]
+            return _core._spectrum_from_parts(basis, header["units"], mass, f["energies"], f["vectors"],
+                                              f["residuals"], header["method"], header["iterations"])
+        loaders = _LOADERS.get(kind)
+        if loaders is None:
+            raise ValueError(f"unknown result type {kind!r} in file")
+        return loaders(header, {k: f[k] for k in f.files if k != "header"})
+
+
+_LOADERS: dict = {}

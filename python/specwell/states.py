@@ -1,0 +1,143 @@
+"""Initial states for propagation and spectra from autocorrelation functions.
+
+All states are complex128 samples ψ(x_j) on a FourierGrid, normalised so that
+Σ|ψ_j|² dx = 1 (the discrete form of ∫|ψ|² dx = 1).
+"""
+
+from __future__ import annotations
+
+from typing import Optional, Sequence, Tuple
+
+import numpy as np
+
+__all__ = ["gaussian_packet", "eigenstate", "superposition", "autocorrelation_spectrum"]
+
+_WINDOWS = ("hann", "gaussian", "none")
+
+
+def _hbar(units: str) -> float:
+    from specwell import _core
+
+    return _core.unit_constants(units)[1]
+
+
+def _normalise(psi: np.ndarray, dx: float, name: str) -> np.ndarray:
+    norm = np.sqrt(np.sum(np.abs(psi) ** 2) * dx)
+    if not np.isfinite(norm) or norm == 0.0:
+        raise ValueError(f"`{name}` gives a state of zero or non-finite norm on this grid")
+    return psi / norm
+
+
+def gaussian_packet(grid, x0: float, p0: float = 0.0, sigma: float = 1.0, units: str = "natural") -> np.ndarray:
+    """Gaussian packet ψ(x) ∝ exp(−(x − x0)²/(4σ²) + i p0 (x − x0)/ħ) on a grid.
+
+    Parameters
+    ----------
+    grid : FourierGrid
+        The grid.
+    x0 : float
+        Centre ⟨x⟩ (length units); must lie inside [grid.start, grid.stop).
+    p0 : float
+        Mean momentum ⟨p⟩ (energy·time/length in the unit system; ħk in natural units).
+    sigma : float
+        Position standard deviation σ (> 0, length units); |ψ|² has width σ.
+    units : {"natural", "atomic", "semiconductor"}
+        Unit system (fixes ħ).
+
+    Returns
+    -------
+    ndarray of complex128, shape (grid.points,)
+    """
+    for name, v in (("x0", x0), ("p0", p0), ("sigma", sigma)):
+        if not np.isfinite(v):
+            raise ValueError(f"`{name}` must be a finite number; got {v}")
+    if sigma <= 0:
+        raise ValueError(f"`sigma` must be a finite number > 0; got {sigma}")
+    if not grid.start <= x0 < grid.stop:
+        raise ValueError(f"`x0` must lie in [{grid.start}, {grid.stop}) (the grid box); got {x0}")
+    hbar = _hbar(units)
+    x = grid.x
+    psi = np.exp(-((x - x0) ** 2) / (4.0 * sigma**2) + 1j * p0 * (x - x0) / hbar)
+    return _normalise(psi.astype(np.complex128), grid.dx, "sigma")
+
+
+def eigenstate(spectrum, n: int, grid) -> np.ndarray:
+    """State ``n`` of ``spectrum`` sampled on ``grid`` (complex128, normalised)."""
+    if not 0 <= n < spectrum.count:
+        raise ValueError(f"`n` must be an integer in [0, {spectrum.count - 1}]; got {n}")
+    psi = spectrum.wavefunctions(grid.x)[n].astype(np.complex128)
+    return _normalise(psi, grid.dx, "n")
+
+
+def superposition(states: Sequence[np.ndarray], coefficients: Sequence[complex], grid) -> np.ndarray:
+    """Normalised Σ c_i ψ_i of states sampled on ``grid``."""
+    states = [np.asarray(s, dtype=np.complex128) for s in states]
+    coefficients = np.asarray(coefficients, dtype=np.complex128)
+    if len(states) == 0 or len(states) != len(coefficients):
+        raise ValueError(f"`coefficients` must have one entry per state ({len(states)}); got {len(coefficients)}")
+    for s in states:
+        if s.shape != (grid.points,):
+            raise ValueError(f"every state must have shape ({grid.points},); got {s.shape}")
+    psi = sum(c * s for c, s in zip(coefficients, states))
+    return _normalise(psi, grid.dx, "coefficients")
+
+
+def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, units: str = "natural",
+                             window: str = "hann", pad: int = 4,
+                             energy_range: Optional[Tuple[float, float]] = None) -> Tuple[np.ndarray, np.ndarray]:
+    """Spectrum σ(E) = |∫ C(t) w(t) e^{iEt/ħ} dt| from an autocorrelation C(t) = ⟨ψ(0)|ψ(t)⟩.
+
+    Peaks sit at the eigenenergies present in ψ(0), with weights |c_n|² (Feit, Fleck & Steiger 1982).
+    The resolution is about 2πħ/T for a record of length T.
+
+    Parameters
+    ----------
+    times : ndarray
+        Uniformly spaced record times starting at t0.
+    autocorrelation : ndarray
+        C(t) at those times.
+    units : str
+        Unit system (fixes ħ).
+    window : {"hann", "gaussian", "none"}
+        Window against truncation ripples.
+    pad : int
+        Zero padding factor (≥ 1) for a finer energy grid.
+    energy_range : (float, float), optional
+        Keep only energies in this interval.
+
+    Returns
+    -------
+    energies, intensity : ndarray
+        Ascending energies and |spectrum| (arbitrary units).
+    """
+    t = np.asarray(times, dtype=float)
+    c = np.asarray(autocorrelation, dtype=np.complex128)
+    if t.ndim != 1 or t.shape != c.shape or len(t) < 4:
+        raise ValueError("`times` and `autocorrelation` must be 1-D of equal length >= 4")
+    dt = np.diff(t)
+    if not np.allclose(dt, dt[0], rtol=1e-9, atol=0) or dt[0] == 0:
+        raise ValueError("`times` must be uniformly spaced and increasing")
+    if window not in _WINDOWS:
+        raise ValueError(f"`window` must be one of {', '.join(repr(w) for w in _WINDOWS)}; got {window!r}")
+    if int(pad) < 1:
+        raise ValueError(f"`pad` must be an integer >= 1; got {pad}")
+    n = len(t)
+    if window == "hann":
+        w = 0.5 * (1 + np.cos(np.pi * np.arange(n) / n))  # half Hann: 1 at t0, 0 at the end
+    elif window == "gaussian":
+        w = np.exp(-0.5 * (3.0 * np.arange(n) / n) ** 2)
+    else:
+        w = np.ones(n)
+    hbar = _hbar(units)
+    m = int(pad) * n
+    # C(t) ∝ Σ |c_n|² e^{−iE_n t/ħ}: transform with e^{+iEt/ħ}, i.e. an inverse FFT.
+    spec = np.fft.ifft(c * w, m) * m
+    omega = 2 * np.pi * np.fft.fftfreq(m, dt[0])
+    energies = hbar * omega
+    order = np.argsort(energies)
+    energies, intensity = energies[order], np.abs(spec[order])
+    if energy_range is not None:
+        lo, hi = energy_range
+        keep = (energies >= lo) & (energies <= hi)
+        energies, intensity = energies[keep], intensity[keep]
+    return energies, intensity

@@ -1,0 +1,133 @@
+//! Python classes Layer and Heterostructure.
+
+use super::arrays::vec_f64;
+use super::display::table;
+use super::errors::IntoPyResult;
+use crate::heterostructure::{Heterostructure, Layer};
+use numpy::PyArray1;
+use pyo3::exceptions::PyTypeError;
+use pyo3::prelude::*;
+use pyo3::types::{PyList, PyType};
+use std::sync::Arc;
+
+/// One layer of a heterostructure: thickness (nm), conduction-band edge (meV), effective mass (m_e).
+#[pyclass(name = "Layer", module = "specwell._core", frozen)]
+#[derive(Clone)]
+pub struct PyLayer {
+    pub inner: Layer,
+}
+
+#[pymethods]
+impl PyLayer {
+    #[new]
+    fn new(thickness: f64, band_edge: f64, mass: f64) -> Self {
+        // Validated by Heterostructure (which names the layer index).
+        PyLayer { inner: Layer::new(thickness, band_edge, mass) }
+    }
+    #[getter]
+    fn thickness(&self) -> f64 {
+        self.inner.thickness
+    }
+    #[getter]
+    fn band_edge(&self) -> f64 {
+        self.inner.band_edge
+    }
+    #[getter]
+    fn mass(&self) -> f64 {
+        self.inner.mass
+    }
+    fn __repr__(&self) -> String {
+        format!("Layer(thickness={}, band_edge={}, mass={})", self.inner.thickness, self.inner.band_edge, self.inner.mass)
+    }
+    fn __eq__(&self, other: &Bound<'_, PyAny>) -> bool {
+        other.cast::<PyLayer>().map(|o| o.get().inner == self.inner).unwrap_or(false)
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (f64, f64, f64)) {
+        let l = &slf.get().inner;
+        (slf.get_type(), (l.thickness, l.band_edge, l.mass))
+    }
+}
+
+/// A stack of layers occupying z ∈ [0, total_thickness) in semiconductor units,
+/// with an optional uniform field applied across the stack.
+#[pyclass(name = "Heterostructure", module = "specwell._core", frozen)]
+pub struct PyHeterostructure {
+    pub inner: Arc<Heterostructure>,
+}
+
+#[pymethods]
+impl PyHeterostructure {
+    #[new]
+    #[pyo3(signature = (layers, field_kv_cm=0.0))]
+    fn new(py: Python<'_>, layers: &Bound<'_, PyAny>, field_kv_cm: f64) -> PyResult<Self> {
+        let mut out = Vec::new();
+        for (i, item) in layers.try_iter().map_err(|_| PyTypeError::new_err("`layers` must be a sequence of specwell.Layer"))?.enumerate() {
+            let item = item?;
+            let l = item.cast::<PyLayer>().map_err(|_| {
+                PyTypeError::new_err(format!("`layers[{i}]` must be a specwell.Layer; got {}", item.get_type().name().map(|n| n.to_string()).unwrap_or_default()))
+            })?;
+            out.push(l.get().inner.clone());
+        }
+        let h = Heterostructure::new(out, field_kv_cm).py(py)?;
+        Ok(PyHeterostructure { inner: Arc::new(h) })
+    }
+    #[getter]
+    fn layers<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
+        PyList::new(py, self.inner.layers().iter().map(|l| PyLayer { inner: l.clone() }))
+    }
+    #[getter]
+    fn field_kv_cm(&self) -> f64 {
+        self.inner.field_kv_cm()
+    }
+    /// Total thickness (nm).
+    #[getter]
+    fn total_thickness(&self) -> f64 {
+        self.inner.total_thickness()
+    }
+    /// Interface positions (nm), including 0 and the total thickness.
+    #[getter]
+    fn interfaces<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.interfaces())
+    }
+    /// Conduction-band edge plus field term V(z) (meV) at points z (nm).
+    fn potential<'py>(&self, py: Python<'py>, z: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let z = vec_f64(z, "z", None)?;
+        crate::error::check_finite("z", &z).py(py)?;
+        Ok(PyArray1::from_vec(py, self.inner.potential(&z)))
+    }
+    /// Effective mass m(z) (m_e) at points z (nm).
+    fn mass<'py>(&self, py: Python<'py>, z: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let z = vec_f64(z, "z", None)?;
+        crate::error::check_finite("z", &z).py(py)?;
+        Ok(PyArray1::from_vec(py, self.inner.mass(&z)))
+    }
+    fn __len__(&self) -> usize {
+        self.inner.layers().len()
+    }
+    fn __repr__(&self) -> String {
+        let layers: Vec<String> = self
+            .inner
+            .layers()
+            .iter()
+            .map(|l| format!("Layer({}, {}, {})", l.thickness, l.band_edge, l.mass))
+            .collect();
+        format!("Heterostructure([{}], field_kv_cm={})", layers.join(", "), self.inner.field_kv_cm())
+    }
+    fn _repr_html_(&self) -> String {
+        let header = vec!["layer".into(), "from (nm)".into(), "thickness (nm)".into(), "band edge (meV)".into(), "mass (m_e)".into()];
+        let z = self.inner.interfaces();
+        let rows: Vec<Vec<String>> = self
+            .inner
+            .layers()
+            .iter()
+            .enumerate()
+            .map(|(i, l)| vec![i.to_string(), format!("{:.3}", z[i]), format!("{}", l.thickness), format!("{}", l.band_edge), format!("{}", l.mass)])
+            .collect();
+        table(&format!("Heterostructure, field {} kV/cm", self.inner.field_kv_cm()), &header, &rows, 100)
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyType>, (Bound<'py, PyList>, f64))> {
+        let py = slf.py();
+        let s = slf.get();
+        Ok((slf.get_type(), (s.layers(py)?, s.inner.field_kv_cm())))
+    }
+}

@@ -1,0 +1,465 @@
+//! Python classes SplitStep and Run.
+
+use super::arrays::{complex_array, to_usize, vec_f64};
+use super::basis::PyFourierGrid;
+use super::errors::IntoPyResult;
+use super::hamiltonian::potential_samples;
+use crate::basis::BasisRef;
+use crate::propagate::{Absorber, Drive, DriveSampling, Run, SplitOrder, SplitStep, SplitStepConfig};
+use crate::units::Units;
+use num_complex::Complex64;
+use numpy::{PyArray1, PyArray2};
+use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyValueError};
+use pyo3::prelude::*;
+use pyo3::types::PyTuple;
+use std::sync::Arc;
+
+/// Split-step Fourier propagator on a FourierGrid (see `_core.pyi`).
+#[pyclass(name = "SplitStep", module = "specwell._core", frozen)]
+pub struct PySplitStep {
+    core: Arc<SplitStep>,
+    grid: Py<PyFourierGrid>,
+    units: Units,
+    mass: f64,
+    potential: Vec<f64>,
+    /// f(t): a callable (evaluated at the sub-step times of each run) or per-step samples.
+    drive: Option<Py<PyAny>>,
+    drive_potential: Option<Vec<f64>>,
+    absorber_width: Option<f64>,
+    absorber_potential: Option<Vec<f64>>,
+    order: usize,
+    dt: f64,
+    imaginary_time: bool,
+}
+
+fn parse_order(order: &Bound<'_, PyAny>) -> PyResult<SplitOrder> {
+    match to_usize(order, "order", 2, 4) {
+        Ok(2) => Ok(SplitOrder::Second),
+        Ok(4) => Ok(SplitOrder::Fourth),
+        _ => Err(PyValueError::new_err(format!(
+            "`order` must be one of 2 (Strang) or 4 (Yoshida composition); got {}",
+            order.str().map(|s| s.to_string()).unwrap_or_default()
+        ))),
+    }
+}
+
+#[pymethods]
+impl PySplitStep {
+    #[new]
+    #[pyo3(signature = (grid, potential, mass=1.0, dt=None, order=None, units="natural", *, drive=None,
+                        drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=false))]
+    #[allow(clippy::too_many_arguments)]
+    fn new(
+        py: Python<'_>,
+        grid: &Bound<'_, PyAny>,
+        potential: &Bound<'_, PyAny>,
+        mass: f64,
+        dt: Option<f64>,
+        order: Option<&Bound<'_, PyAny>>,
+        units: &str,
+        drive: Option<&Bound<'_, PyAny>>,
+        drive_potential: Option<&Bound<'_, PyAny>>,
+        absorber_width: Option<f64>,
+        absorber_potential: Option<&Bound<'_, PyAny>>,
+        imaginary_time: bool,
+    ) -> PyResult<Self> {
+        let units = Units::parse(units).py(py)?;
+        let g = grid
+            .cast::<PyFourierGrid>()
+            .map_err(|_| PyTypeError::new_err("`grid` must be a specwell.FourierGrid (split-step needs a periodic grid)"))?;
+        let gref = BasisRef::Fourier(g.get().inner.clone());
+        let dt = dt.ok_or_else(|| PyTypeError::new_err("`dt` is required: the time step (time units; > 0 for imaginary time)"))?;
+        let order_enum = match order {
+            None => SplitOrder::Second,
+            Some(o) => parse_order(o)?,
+        };
+        crate::error::check_positive("mass", mass).py(py)?;
+        let v = potential_samples(potential, &gref, "potential")?;
+        let gi = &g.get().inner;
+        let mut cfg = SplitStepConfig::new(gi.start(), gi.dx(), gi.len(), v.clone(), units.kinetic_prefactor(mass), units.hbar(), dt);
+        cfg.order = order_enum;
+        cfg.imaginary_time = imaginary_time;
+        let dpot = drive_potential.map(|d| potential_samples(d, &gref, "drive_potential")).transpose()?;
+        if drive.is_some() != dpot.is_some() {
+            return Err(PyValueError::new_err("`drive` and `drive_potential` must be given together: V(x,t) = V0(x) + drive(t)·drive_potential(x)"));
+        }
+        let apot = absorber_potential.map(|a| potential_samples(a, &gref, "absorber_potential")).transpose()?;
+        cfg.absorber = match (absorber_width, &apot) {
+            (Some(_), Some(_)) => {
+                return Err(PyValueError::new_err("give at most one of `absorber_width` (mask) and `absorber_potential` (complex absorbing potential)"))
+            }
+            (Some(w), None) => Some(Absorber::cos_mask(gi.len(), gi.dx(), w).py(py)?),
+            (None, Some(w)) => Some(Absorber::Cap(w.clone())),
+            (None, None) => None,
+        };
+        let core = SplitStep::new(cfg).py(py)?;
+        Ok(PySplitStep {
+            core: Arc::new(core),
+            grid: g.clone().unbind(),
+            units,
+            mass,
+            potential: v,
+            drive: drive.map(|d| d.clone().unbind()),
+            drive_potential: dpot,
+            absorber_width,
+            absorber_potential: apot,
+            order: if order_enum == SplitOrder::Second { 2 } else { 4 },
+            dt,
+            imaginary_time,
+        })
+    }
+
+    /// Propagate `psi0` for `steps` steps; records every `record_every` steps (and the last).
+    #[pyo3(signature = (psi0, steps, record_every=None, progress=false))]
+    fn run(
+        &self,
+        py: Python<'_>,
+        psi0: &Bound<'_, PyAny>,
+        steps: &Bound<'_, PyAny>,
+        record_every: Option<&Bound<'_, PyAny>>,
+        progress: bool,
+    ) -> PyResult<PyRun> {
+        let n = self.core.n();
+        let (shape, data) = complex_array(psi0, "psi0")?;
+        if shape != [n] {
+            return Err(PyValueError::new_err(format!("`psi0` must have shape ({n},); got {shape:?}")));
+        }
+        let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
+        let record_every = match record_every {
+            None => 1,
+            Some(r) => to_usize(r, "record_every", 1, usize::MAX >> 8)?,
+        };
+        let core = self.prepared(py, steps)?;
+        let mut bar = ProgressBar::new(py, progress, steps as u64)?;
+        let (result, interrupted) = {
+            let bar_ref = &mut bar;
+            let mut interrupted = false;
+            let r = py.detach(|| {
+                core.run(&data, steps, record_every, &mut |done| {
+                    Python::attach(|py| {
+                        bar_ref.update(py, done as u64);
+                        if py.check_signals().is_err() {
+                            interrupted = true;
+                        }
+                    });
+                    !interrupted
+                })
+            });
+            (r, interrupted)
+        };
+        bar.close(py);
+        if interrupted {
+            return Err(PyKeyboardInterrupt::new_err("propagation interrupted"));
+        }
+        let run = result.py(py)?;
+        Ok(PyRun::new(run, self.grid.clone_ref(py), self.units))
+    }
+
+    /// Propagate many initial states (rows of `psi0s`, shape (M, N)) in parallel.
+    #[pyo3(signature = (psi0s, steps, record_every=None))]
+    fn run_many(
+        &self,
+        py: Python<'_>,
+        psi0s: &Bound<'_, PyAny>,
+        steps: &Bound<'_, PyAny>,
+        record_every: Option<&Bound<'_, PyAny>>,
+    ) -> PyResult<Vec<PyRun>> {
+        let n = self.core.n();
+        let (shape, data) = complex_array(psi0s, "psi0s")?;
+        if shape.len() != 2 || shape[1] != n || shape[0] == 0 {
+            return Err(PyValueError::new_err(format!("`psi0s` must have shape (M, {n}) with M >= 1; got {shape:?}")));
+        }
+        let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
+        let record_every = match record_every {
+            None => 1,
+            Some(r) => to_usize(r, "record_every", 1, usize::MAX >> 8)?,
+        };
+        let core = self.prepared(py, steps)?;
+        let runs = py.detach(|| core.run_many(&data, steps, record_every, &mut |_| true)).py(py)?;
+        Ok(runs.into_iter().map(|r| PyRun::new(r, self.grid.clone_ref(py), self.units)).collect())
+    }
+
+    /// Lowest `count` states by imaginary-time propagation with Gram-Schmidt
+    /// (requires imaginary_time=True). Returns (energies, states (count, N)).
+    #[pyo3(signature = (count, tol=1e-9, max_steps=None, seed=0x5eed))]
+    fn ground_states<'py>(
+        &self,
+        py: Python<'py>,
+        count: &Bound<'py, PyAny>,
+        tol: f64,
+        max_steps: Option<&Bound<'py, PyAny>>,
+        seed: u64,
+    ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray2<Complex64>>)> {
+        let n = self.core.n();
+        let count = to_usize(count, "count", 1, n)?;
+        let max_steps = match max_steps {
+            None => 200_000,
+            Some(m) => to_usize(m, "max_steps", 1, usize::MAX >> 8)?,
+        };
+        crate::error::check_positive("tol", tol).py(py)?;
+        let core = self.core.clone();
+        let gs = py.detach(move || core.ground_states(count, tol, max_steps, seed)).py(py)?;
+        let states = ndarray::Array2::from_shape_vec((count, n), gs.states)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok((PyArray1::from_vec(py, gs.energies), PyArray2::from_owned_array(py, states)))
+    }
+
+    /// Times (relative to t0 = 0) at which a callable drive f(t) is evaluated for a run of `steps`.
+    fn drive_sample_times<'py>(&self, py: Python<'py>, steps: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
+        Ok(PyArray1::from_vec(py, self.core.drive_sample_times(steps, DriveSampling::Substeps)))
+    }
+
+    #[getter]
+    fn dt(&self) -> f64 {
+        self.dt
+    }
+    #[getter]
+    fn order(&self) -> usize {
+        self.order
+    }
+    #[getter]
+    fn units(&self) -> &'static str {
+        self.units.name()
+    }
+    #[getter]
+    fn grid(&self, py: Python<'_>) -> Py<PyFourierGrid> {
+        self.grid.clone_ref(py)
+    }
+    #[getter]
+    fn potential<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.potential)
+    }
+    fn __repr__(&self) -> String {
+        use crate::basis::Basis;
+        format!(
+            "SplitStep({}, dt={}, order={}, mass={}, units={:?}{}{})",
+            self.grid.get().inner.describe(),
+            self.dt,
+            self.order,
+            self.mass,
+            self.units.name(),
+            if self.drive.is_some() { ", driven" } else { "" },
+            if self.imaginary_time { ", imaginary time" } else { "" }
+        )
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
+        let py = slf.py();
+        let s = slf.get();
+        let ctor = py.import("specwell._core")?.getattr("_split_step_from_parts")?;
+        let none = || py.None();
+        let args = PyTuple::new(
+            py,
+            [
+                s.grid.clone_ref(py).into_any(),
+                PyArray1::from_slice(py, &s.potential).into_any().unbind(),
+                s.mass.into_pyobject(py)?.into_any().unbind(),
+                s.dt.into_pyobject(py)?.into_any().unbind(),
+                s.order.into_pyobject(py)?.into_any().unbind(),
+                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                s.drive.as_ref().map(|d| d.clone_ref(py)).unwrap_or_else(none),
+                s.drive_potential.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none),
+                s.absorber_width.map(|w| w.into_pyobject(py).map(|o| o.into_any().unbind())).transpose()?.unwrap_or_else(none),
+                s.absorber_potential.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none),
+                s.imaginary_time.into_pyobject(py)?.to_owned().into_any().unbind(),
+            ],
+        )?;
+        Ok((ctor, args))
+    }
+}
+
+impl PySplitStep {
+    /// The core propagator with the drive samples for a run of `steps` steps.
+    fn prepared(&self, py: Python<'_>, steps: usize) -> PyResult<Arc<SplitStep>> {
+        let (f, v1) = match (&self.drive, &self.drive_potential) {
+            (Some(f), Some(v1)) => (f.bind(py), v1),
+            _ => return Ok(self.core.clone()),
+        };
+        let (values, sampling) = if f.is_callable() {
+            let times = self.core.drive_sample_times(steps, DriveSampling::Substeps);
+            let t = PyArray1::from_slice(py, &times);
+            // Vectorised call first; fall back to one call per time for scalar-only callables.
+            let values = match f.call1((t,)).and_then(|r| vec_f64(&r, "drive", Some(times.len()))) {
+                Ok(v) => v,
+                Err(_) => times.iter().map(|&ti| f.call1((ti,))?.extract::<f64>()).collect::<PyResult<Vec<f64>>>()?,
+            };
+            (values, DriveSampling::Substeps)
+        } else {
+            let v = vec_f64(f, "drive", None)?;
+            if v.len() < steps {
+                return Err(PyValueError::new_err(format!(
+                    "`drive` samples must have at least `steps` = {steps} entries (f at each step midpoint t_n + dt/2); got {}",
+                    v.len()
+                )));
+            }
+            (v, DriveSampling::Midpoint)
+        };
+        crate::error::check_finite("drive", &values).py(py)?;
+        let mut core = (*self.core).clone();
+        core.set_drive(Some(Drive { v1: v1.clone(), f: values, sampling })).py(py)?;
+        Ok(Arc::new(core))
+    }
+}
+
+/// Rebuild a SplitStep (target of `SplitStep.__reduce__`).
+#[pyfunction]
+#[allow(clippy::too_many_arguments)]
+pub fn _split_step_from_parts(
+    py: Python<'_>,
+    grid: &Bound<'_, PyAny>,
+    potential: &Bound<'_, PyAny>,
+    mass: f64,
+    dt: f64,
+    order: &Bound<'_, PyAny>,
+    units: &str,
+    drive: Option<&Bound<'_, PyAny>>,
+    drive_potential: Option<&Bound<'_, PyAny>>,
+    absorber_width: Option<f64>,
+    absorber_potential: Option<&Bound<'_, PyAny>>,
+    imaginary_time: bool,
+) -> PyResult<PySplitStep> {
+    PySplitStep::new(py, grid, potential, mass, Some(dt), Some(order), units, drive, drive_potential, absorber_width, absorber_potential, imaginary_time)
+}
+
+/// tqdm progress bar driven from the Rust loop (a no-op when progress=False).
+struct ProgressBar {
+    bar: Option<Py<PyAny>>,
+    last: u64,
+}
+
+impl ProgressBar {
+    fn new(py: Python<'_>, enabled: bool, total: u64) -> PyResult<Self> {
+        if !enabled {
+            return Ok(ProgressBar { bar: None, last: 0 });
+        }
+        let tqdm = py.import("tqdm").map_err(|_| {
+            pyo3::exceptions::PyImportError::new_err("progress=True needs tqdm: pip install 'specwell[progress]'")
+        })?;
+        let kwargs = pyo3::types::PyDict::new(py);
+        kwargs.set_item("total", total)?;
+        kwargs.set_item("unit", "step")?;
+        kwargs.set_item("desc", "split-step")?;
+        let bar = tqdm.getattr("tqdm")?.call((), Some(&kwargs))?;
+        Ok(ProgressBar { bar: Some(bar.unbind()), last: 0 })
+    }
+    fn update(&mut self, py: Python<'_>, done: u64) {
+        if let Some(b) = &self.bar {
+            let _ = b.call_method1(py, "update", (done.saturating_sub(self.last),));
+            self.last = done;
+        }
+    }
+    fn close(&mut self, py: Python<'_>) {
+        if let Some(b) = &self.bar {
+            let _ = b.call_method0(py, "close");
+        }
+    }
+}
+
+/// Result of a propagation (see `_core.pyi`).
+#[pyclass(name = "Run", module = "specwell._core", frozen)]
+pub struct PyRun {
+    pub inner: Arc<Run>,
+    grid: Py<PyFourierGrid>,
+    units: Units,
+}
+
+impl PyRun {
+    fn new(run: Run, grid: Py<PyFourierGrid>, units: Units) -> Self {
+        PyRun { inner: Arc::new(run), grid, units }
+    }
+}
+
+#[pymethods]
+impl PyRun {
+    #[getter]
+    fn times<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.times)
+    }
+    /// Recorded states, shape (records, N), complex128 samples ψ(x_j).
+    #[getter]
+    fn states<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<Complex64>>> {
+        let r = &self.inner;
+        let rows = r.times.len();
+        let a = ndarray::Array2::from_shape_vec((rows, r.n), r.states.clone()).map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok(PyArray2::from_owned_array(py, a))
+    }
+    #[getter]
+    fn norm<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.norm)
+    }
+    #[getter]
+    fn mean_x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.mean_x)
+    }
+    #[getter]
+    fn mean_p<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.mean_p)
+    }
+    #[getter]
+    fn energy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.energy)
+    }
+    /// ⟨ψ(0)|ψ(t)⟩ per record.
+    #[getter]
+    fn autocorrelation<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<Complex64>> {
+        PyArray1::from_slice(py, &self.inner.autocorrelation)
+    }
+    /// Fraction of the initial norm absorbed (None without an absorber).
+    #[getter]
+    fn absorbed_norm(&self) -> Option<f64> {
+        self.inner.absorbed_norm
+    }
+    #[getter]
+    fn steps_done(&self) -> usize {
+        self.inner.steps_done
+    }
+    #[getter]
+    fn record_steps(&self) -> Vec<usize> {
+        self.inner.record_steps.clone()
+    }
+    #[getter]
+    fn grid(&self, py: Python<'_>) -> Py<PyFourierGrid> {
+        self.grid.clone_ref(py)
+    }
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.grid.get().inner.x())
+    }
+    #[getter]
+    fn units(&self) -> &'static str {
+        self.units.name()
+    }
+    fn __len__(&self) -> usize {
+        self.inner.times.len()
+    }
+    fn __repr__(&self) -> String {
+        let r = &self.inner;
+        let t = r.times.last().cloned().unwrap_or(0.0);
+        let sym = self.units.symbols()[3];
+        format!(
+            "Run(records={}, steps={}, t_end={t}{}{}, final norm={:.12})",
+            r.times.len(),
+            r.steps_done,
+            if sym.is_empty() { "" } else { " " },
+            sym,
+            r.norm.last().cloned().unwrap_or(0.0)
+        )
+    }
+    fn _repr_html_(&self) -> String {
+        let r = &self.inner;
+        let sym = self.units.symbols();
+        let last = |v: &Vec<f64>| v.last().map(|x| format!("{x:.10}")).unwrap_or_default();
+        super::display::key_value_table(
+            "Run",
+            &[
+                ("records", r.times.len().to_string()),
+                ("steps", r.steps_done.to_string()),
+                ("t end", format!("{}{}", last(&r.times), super::display::unit_suffix(sym[3]))),
+                ("final norm", last(&r.norm)),
+                ("final ⟨x⟩", format!("{}{}", last(&r.mean_x), super::display::unit_suffix(sym[0]))),
+                ("final energy", format!("{}{}", last(&r.energy), super::display::unit_suffix(sym[1]))),
+                ("absorbed", r.absorbed_norm.map(|a| format!("{a:.6}")).unwrap_or_else(|| "—".into())),
+            ],
+        )
+    }
+}
