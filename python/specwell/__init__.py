@@ -1,7 +1,8 @@
 """specwell: bound states and wavepacket dynamics of 1D Schrödinger problems.
 
-Spectral bases (Gauss-Hermite functions, Fourier grids), a Rust core that builds
-and diagonalises Hamiltonians, and a numpy-first API.
+Spectral bases (Gauss-Hermite functions, Fourier grids, exact-layer
+heterostructures), a Rust core that builds and diagonalises Hamiltonians and
+propagates wavepackets by split-step Fourier, and a numpy-first API.
 
 Model limits: single-particle, single-band effective-mass Schrödinger equation
 (parabolic bands, no many-body effects). See the README for conventions.
@@ -14,10 +15,16 @@ from specwell._core import (
     FourierGrid,
     Hamiltonian,
     HermiteBasis,
+    Heterostructure,
+    Layer,
+    Run,
     Spectrum,
+    SplitStep,
     __version__,
     eigh,
 )
+from specwell.io import load, save
+from specwell.states import autocorrelation_spectrum, eigenstate, gaussian_packet, superposition
 
 __all__ = [
     "METHODS",
@@ -26,7 +33,17 @@ __all__ = [
     "FourierGrid",
     "Hamiltonian",
     "HermiteBasis",
+    "Heterostructure",
+    "Layer",
+    "Run",
     "Spectrum",
+    "SplitStep",
     "__version__",
+    "autocorrelation_spectrum",
+    "eigenstate",
     "eigh",
+    "gaussian_packet",
+    "load",
+    "save",
+    "superposition",
 ]
