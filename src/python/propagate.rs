@@ -463,3 +463,9 @@ impl PyRun {
         )
     }
 }
+
+/// Seconds per forward+inverse pair of bare in-place FFTs of length `n` (benchmark floor).
+#[pyfunction]
+pub fn _bare_fft_pair_seconds(py: Python<'_>, n: usize, reps: usize) -> f64 {
+    py.detach(|| crate::propagate::bare_fft_pair_seconds(n, reps))
+}
