@@ -122,8 +122,11 @@ class Hamiltonian:
     ----------
     basis : HermiteBasis or FourierGrid
         The basis.
-    potential : callable or array_like
+    potential : callable or array_like or Heterostructure
         Vectorised V(x) called with ``basis.x``, or samples on ``basis.x`` (energy units).
+        A Heterostructure on a FourierGrid (``units="semiconductor"``, no ``mass``) gives the
+        BenDaniel-Duke Hamiltonian with exact layer integrals in the mass coordinate: the grid
+        sets the box and the number of modes; the problem is generalized (A c = E B c).
     mass : float or array_like or callable, optional
         Particle mass in the unit system's mass unit (default 1). On a FourierGrid an array on
         the grid (or a callable) gives the BenDaniel-Duke operator −(ħ²/2) d/dx (1/m) d/dx.
@@ -140,8 +143,10 @@ class Hamiltonian:
 
     def __init__(self, basis: Union[HermiteBasis, FourierGrid], potential: PotentialLike,
                  mass: Union[float, PotentialLike, None] = None, units: str = "natural") -> None: ...
+    def overlap_matrix(self) -> Optional[npt.NDArray[np.float64]]:
+        """The overlap matrix B of a heterostructure's generalized problem A c = E B c (None otherwise)."""
     def matrix(self) -> npt.NDArray[np.float64]:
-        """The dense N×N matrix (real symmetric).
+        """The dense N×N matrix (real symmetric); for a heterostructure, the matrix A of A c = E B c.
 
         Raises
         ------
@@ -238,7 +243,13 @@ class Spectrum:
     def dipole_matrix(self) -> npt.NDArray[np.float64]:
         """Position matrix ⟨i|x|j⟩, shape (count, count), length units."""
     def oscillator_strengths(self) -> npt.NDArray[np.float64]:
-        """f_ij = (2m/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count); needs a uniform mass."""
+        """f_ij = (2m_i/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
+
+        m_i is the mass, or ⟨i|m(x)|i⟩ for a position-dependent mass (then the
+        Thomas-Reiche-Kuhn sum rule holds only approximately).
+        """
+    def save(self, path: str) -> None:
+        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
     def __len__(self) -> int: ...
 
 def eigh(a: npt.ArrayLike) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]:
@@ -251,3 +262,183 @@ def eigh(a: npt.ArrayLike) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.floa
     vectors : ndarray, shape (n, n)
         Eigenvectors as columns.
     """
+
+class Layer:
+    """One layer: thickness (nm, > 0), conduction-band edge (meV), effective mass (m_e, > 0)."""
+
+    def __init__(self, thickness: float, band_edge: float, mass: float) -> None: ...
+    @property
+    def thickness(self) -> float:
+        """Thickness (nm)."""
+    @property
+    def band_edge(self) -> float:
+        """Conduction-band edge (meV)."""
+    @property
+    def mass(self) -> float:
+        """Effective mass (m_e)."""
+
+class Heterostructure:
+    """A stack of layers on z ∈ [0, total_thickness) (nm) with an optional uniform field.
+
+    Parameters
+    ----------
+    layers : sequence of Layer
+        From left to right; the outer layers continue beyond the stack as barrier padding.
+    field_kv_cm : float
+        Field (kV/cm) applied across the stack only: V(z) = band edge + 0.1·F·(clamp(z, 0, L) − L/2) meV,
+        constant outside the stack (no sawtooth in the periodic box).
+    """
+
+    def __init__(self, layers: Sequence[Layer], field_kv_cm: float = 0.0) -> None: ...
+    @property
+    def layers(self) -> list[Layer]:
+        """The layers."""
+    @property
+    def field_kv_cm(self) -> float:
+        """Field (kV/cm)."""
+    @property
+    def total_thickness(self) -> float:
+        """Total thickness L (nm)."""
+    @property
+    def interfaces(self) -> npt.NDArray[np.float64]:
+        """Interface positions 0 = z_0 < … < z_n = L (nm)."""
+    def potential(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
+        """V(z) (meV): band edge plus field term, at points z (nm)."""
+    def mass(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
+        """m(z) (m_e) at points z (nm)."""
+    def __len__(self) -> int: ...
+
+class SplitStep:
+    """Split-step Fourier propagator (Feit, Fleck & Steiger 1982) on a FourierGrid.
+
+    Parameters
+    ----------
+    grid : FourierGrid
+        Periodic grid.
+    potential : callable or array_like
+        Static potential V0(x) (energy units).
+    mass : float
+        Particle mass (> 0).
+    dt : float
+        Time step (time units; nonzero; > 0 in imaginary time).
+    order : {2, 4}
+        2: Strang splitting; 4: Yoshida (1990) composition of three Strang steps.
+    units : {"natural", "atomic", "semiconductor"}
+        Unit system.
+    drive : callable or array_like, optional
+        f(t) of V(x,t) = V0(x) + f(t)·V1(x). A callable is evaluated (vectorised if it can be)
+        at the sub-step midpoints of each run before the loop starts, keeping full order;
+        an array gives f at the step midpoints t_n + dt/2 (second order in the drive for order=4).
+        Both run at the same speed: the samples are taken before the GIL is released.
+    drive_potential : callable or array_like, optional
+        V1(x) (energy per unit of f); e.g. ``lambda x: x`` for a uniform field.
+    absorber_width : float, optional
+        Width of a smooth cos^(1/8) mask at both box edges (absorption per step).
+    absorber_potential : callable or array_like, optional
+        Complex absorbing potential W(x) ≥ 0: V → V − iW.
+    imaginary_time : bool
+        Propagate in imaginary time (use ``ground_states``).
+    """
+
+    def __init__(self, grid: FourierGrid, potential: PotentialLike, mass: float = 1.0, dt: Optional[float] = None,
+                 order: Optional[int] = None, units: str = "natural", *, drive: Union[Callable[..., npt.ArrayLike], npt.ArrayLike, None] = None,
+                 drive_potential: Optional[PotentialLike] = None, absorber_width: Optional[float] = None,
+                 absorber_potential: Optional[PotentialLike] = None, imaginary_time: bool = False) -> None: ...
+    def run(self, psi0: npt.ArrayLike, steps: int, record_every: Optional[int] = None, progress: bool = False) -> Run:
+        """Propagate ``psi0`` (samples on the grid) for ``steps`` steps.
+
+        Parameters
+        ----------
+        psi0 : array_like, shape (N,)
+            Initial state ψ(x_j); normalise it (Σ|ψ|²dx = 1) for normalised observables.
+        steps : int
+            Number of time steps (≥ 0).
+        record_every : int, optional
+            Record every this many steps (default 1); the final state is always recorded.
+        progress : bool
+            Show a tqdm progress bar (extra ``progress``); Ctrl-C interrupts the run.
+
+        Returns
+        -------
+        Run
+
+        Raises
+        ------
+        MemoryError
+            If the recorded snapshots would not fit in memory (raise ``record_every``).
+        """
+    def run_many(self, psi0s: npt.ArrayLike, steps: int, record_every: Optional[int] = None) -> list[Run]:
+        """Propagate the rows of ``psi0s`` (shape (M, N)) in parallel across cores."""
+    def ground_states(self, count: int, tol: float = 1e-9, max_steps: Optional[int] = None,
+                      seed: int = 0x5EED) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.complex128]]:
+        """Lowest ``count`` states by imaginary-time propagation with Gram-Schmidt (imaginary_time=True).
+
+        Returns
+        -------
+        energies : ndarray, shape (count,)
+        states : ndarray of complex128, shape (count, N), Σ|ψ|²dx = 1
+        """
+    def drive_sample_times(self, steps: int) -> npt.NDArray[np.float64]:
+        """Times at which a callable drive is evaluated for a run of ``steps`` steps."""
+    @property
+    def dt(self) -> float:
+        """Time step."""
+    @property
+    def order(self) -> int:
+        """Splitting order (2 or 4)."""
+    @property
+    def units(self) -> str:
+        """Unit system name."""
+    @property
+    def grid(self) -> FourierGrid:
+        """The grid."""
+    @property
+    def potential(self) -> npt.NDArray[np.float64]:
+        """Static potential on the grid."""
+
+class Run:
+    """Result of ``SplitStep.run``: records at ``times`` (record 0 = initial state)."""
+
+    @property
+    def times(self) -> npt.NDArray[np.float64]:
+        """Record times."""
+    @property
+    def states(self) -> npt.NDArray[np.complex128]:
+        """Recorded states ψ(x_j), shape (records, N)."""
+    @property
+    def norm(self) -> npt.NDArray[np.float64]:
+        """Σ|ψ|²dx per record."""
+    @property
+    def mean_x(self) -> npt.NDArray[np.float64]:
+        """⟨x⟩ per record (normalised by the norm)."""
+    @property
+    def mean_p(self) -> npt.NDArray[np.float64]:
+        """⟨p⟩ = ħ⟨k⟩ per record."""
+    @property
+    def energy(self) -> npt.NDArray[np.float64]:
+        """⟨T⟩ + ⟨V(t)⟩ per record."""
+    @property
+    def autocorrelation(self) -> npt.NDArray[np.complex128]:
+        """⟨ψ(0)|ψ(t)⟩ per record."""
+    @property
+    def absorbed_norm(self) -> Optional[float]:
+        """Fraction of the norm absorbed (None without an absorber)."""
+    @property
+    def steps_done(self) -> int:
+        """Steps taken."""
+    @property
+    def record_steps(self) -> list[int]:
+        """Step index of each record."""
+    @property
+    def grid(self) -> FourierGrid:
+        """The grid."""
+    @property
+    def x(self) -> npt.NDArray[np.float64]:
+        """Grid points."""
+    @property
+    def units(self) -> str:
+        """Unit system name."""
+    def __len__(self) -> int: ...
+
+def unit_constants(units: str) -> Tuple[float, float]:
+    """(ħ²/2m_e, ħ) of a unit system, in energy·length² and energy·time."""
