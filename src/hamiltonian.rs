@@ -151,6 +151,31 @@ impl Hamiltonian {
         self.basis.as_dyn().size()
     }
 
+    /// An upper estimate of ‖H‖₂ (largest kinetic energy plus max |V|; for a
+    /// heterostructure, of the standard-form operator), used for round-off floors.
+    pub fn norm_estimate(&self) -> f64 {
+        let vmax = self.potential.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+        let cmax = match &self.kinetic {
+            Kinetic::Uniform(c) => *c,
+            Kinetic::Profile(cs) => cs.iter().cloned().fold(0.0, f64::max),
+        };
+        let kmax2 = match &self.basis {
+            BasisRef::Fourier(g) => (std::f64::consts::PI / g.dx()).powi(2),
+            BasisRef::Hermite(b) => (2.0 * b.size() as f64 + 1.0) / (b.length() * b.length()),
+            BasisRef::Layered(l) => {
+                // k_s = π N/S in the mass coordinate; T = (ħ²/2m_e) k_s² relative to B ≥ 1/m_max.
+                let p = l.problem();
+                let ks = std::f64::consts::PI * p.dim() as f64 / p.s_length();
+                let mmax = match &self.mass {
+                    Mass::Profile(ms) => ms.iter().cloned().fold(0.0, f64::max),
+                    Mass::Uniform(m) => *m,
+                };
+                return self.units.hbar2_over_2me() * ks * ks * mmax + vmax;
+            }
+        };
+        cmax * kmax2 + vmax
+    }
+
     /// Bytes a dense N×N matrix of this Hamiltonian takes.
     pub fn dense_bytes(&self) -> u64 {
         let n = self.size() as u64;

@@ -2,6 +2,8 @@
 //! lowest states of large grids, a matrix-free block iteration.
 
 pub mod dense;
+pub mod iterative;
+pub mod matrix_free;
 
 use crate::basis::{fix_signs, BasisRef};
 use crate::error::{InputError, Result};
@@ -47,7 +49,7 @@ impl Method {
     /// The concrete method `Auto` picks for `h` and `count`.
     pub fn resolve(self, h: &Hamiltonian, count: usize) -> Method {
         match self {
-            Method::Auto => auto_choice(h, count),
+            Method::Auto => matrix_free::auto_choice(h, count),
             m => m,
         }
     }
@@ -150,17 +152,21 @@ pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f
 
 /// Lowest `opts.count` eigenpairs of `h`.
 pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
+    solve_with_par(h, opts, faer::get_global_parallelism())
+}
+
+/// [`solve`] with explicit parallelism for the dense kernels (`Par::Seq` inside
+/// an outer parallel loop such as [`solve_batch`]).
+pub fn solve_with_par(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
     check_count(opts.count, h.size())?;
     check_tol(opts.tol)?;
     let method = opts.method.resolve(h, opts.count);
     let (energies, mut vectors, iterations) = match method {
         Method::Dense | Method::Auto => {
-            let (e, v) = dense::lowest(h, opts.count, faer::get_global_parallelism())?;
+            let (e, v) = dense::lowest(h, opts.count, par)?;
             (e, v, 0)
         }
-        Method::Iterative => {
-            return Err(InputError::range("method", "\"dense\" or \"auto\" (the iterative path is not built yet)", "iterative").into())
-        }
+        Method::Iterative => matrix_free::solve_hamiltonian(h, opts)?,
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(h, &energies, &vectors);
@@ -177,7 +183,55 @@ pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
     })
 }
 
-/// The rule of `method="auto"`.
-pub fn auto_choice(_h: &Hamiltonian, _count: usize) -> Method {
-    Method::Dense
+/// Solve many Hamiltonians that share a basis, mass and units but differ in the
+/// potential (`potentials[i]` sampled on the basis points), in parallel with rayon.
+///
+/// Dense method: items are independent (one sequential dense solve per item).
+/// Iterative method: the items are split into one contiguous chunk per thread and
+/// each item is warm-started from the previous item's eigenvectors (sweeps over a
+/// field or a width change the states smoothly). Results are in input order.
+pub fn solve_batch(
+    basis: &BasisRef,
+    potentials: &[Vec<f64>],
+    mass: &Mass,
+    units: Units,
+    opts: &SolveOptions,
+) -> Result<Vec<Spectrum>> {
+    use rayon::prelude::*;
+    if potentials.is_empty() {
+        return Err(InputError::range("potentials", "at least one potential", "none").into());
+    }
+    let build = |v: &Vec<f64>| Hamiltonian::new(basis.clone(), v.clone(), mass.clone(), units);
+    let first = build(&potentials[0])?;
+    check_count(opts.count, first.size())?;
+    let method = opts.method.resolve(&first, opts.count);
+    let mut o = opts.clone();
+    o.method = method;
+    match method {
+        Method::Iterative => {
+            let threads = rayon::current_num_threads().max(1);
+            let chunk = potentials.len().div_ceil(threads);
+            let chunks: Vec<Result<Vec<Spectrum>>> = potentials
+                .par_chunks(chunk)
+                .map(|items| {
+                    let mut out: Vec<Spectrum> = Vec::with_capacity(items.len());
+                    let mut oi = o.clone();
+                    for v in items {
+                        if let Some(prev) = out.last() {
+                            let m = &prev.vectors;
+                            oi.initial = Some((0..m.ncols()).flat_map(|j| (0..m.nrows()).map(move |i| m[(i, j)])).collect());
+                        }
+                        out.push(solve_with_par(&build(v)?, &oi, faer::Par::Seq)?);
+                    }
+                    Ok(out)
+                })
+                .collect();
+            let mut all = Vec::with_capacity(potentials.len());
+            for c in chunks {
+                all.extend(c?);
+            }
+            Ok(all)
+        }
+        _ => potentials.par_iter().map(|v| solve_with_par(&build(v)?, &o, faer::Par::Seq)).collect(),
+    }
 }

@@ -84,6 +84,24 @@ impl PySplitStep {
             return Err(PyValueError::new_err("`drive` and `drive_potential` must be given together: V(x,t) = V0(x) + drive(t)·drive_potential(x)"));
         }
         let apot = absorber_potential.map(|a| potential_samples(a, &gref, "absorber_potential")).transpose()?;
+        if let Some(i) = apot.as_ref().and_then(|w| w.iter().position(|&v| v < 0.0)) {
+            return Err(PyValueError::new_err(format!(
+                "`absorber_potential` must be >= 0 everywhere (W in V − iW); got a negative value at index {i}"
+            )));
+        }
+        if let Some(w) = absorber_width {
+            let half = 0.5 * (gi.stop() - gi.start());
+            if !(w.is_finite() && w > 0.0 && w <= half) {
+                return Err(PyValueError::new_err(format!(
+                    "`absorber_width` must be a length in (0, {half}] (half the box); got {w}"
+                )));
+            }
+        }
+        if imaginary_time && (drive.is_some() || absorber_width.is_some() || apot.is_some()) {
+            return Err(PyValueError::new_err(
+                "`imaginary_time=True` takes no `drive`, `absorber_width` or `absorber_potential` (imaginary time relaxes a static problem)",
+            ));
+        }
         cfg.absorber = match (absorber_width, &apot) {
             (Some(_), Some(_)) => {
                 return Err(PyValueError::new_err("give at most one of `absorber_width` (mask) and `absorber_potential` (complex absorbing potential)"))
@@ -129,6 +147,9 @@ impl PySplitStep {
             None => 1,
             Some(r) => to_usize(r, "record_every", 1, usize::MAX >> 8)?,
         };
+        // Refuse oversized record sets before evaluating a drive callable.
+        let records = (steps / record_every + 2) as u64;
+        crate::error::check_memory("record_every", records * n as u64 * 16, "record fewer snapshots: raise record_every").py(py)?;
         let core = self.prepared(py, steps)?;
         let mut bar = ProgressBar::new(py, progress, steps as u64)?;
         let (result, interrupted) = {
@@ -281,7 +302,16 @@ impl PySplitStep {
             // Vectorised call first; fall back to one call per time for scalar-only callables.
             let values = match f.call1((t,)).and_then(|r| vec_f64(&r, "drive", Some(times.len()))) {
                 Ok(v) => v,
-                Err(_) => times.iter().map(|&ti| f.call1((ti,))?.extract::<f64>()).collect::<PyResult<Vec<f64>>>()?,
+                Err(_) => times
+                    .iter()
+                    .map(|&ti| {
+                        f.call1((ti,))?.extract::<f64>().map_err(|_| {
+                            PyTypeError::new_err(format!(
+                                "`drive` must return one float per time (vectorised: an array shaped like its input); failed at t = {ti}"
+                            ))
+                        })
+                    })
+                    .collect::<PyResult<Vec<f64>>>()?,
             };
             (values, DriveSampling::Substeps)
         } else {
