@@ -71,8 +71,8 @@ impl fmt::Display for NumericalError {
                 let worst = residuals.iter().cloned().fold(0.0_f64, f64::max);
                 write!(
                     f,
-                    "iterative eigensolver did not reach tol={tol:e} within {iterations} iterations \
-                     (largest relative residual {worst:e}); raise `max_iter`, loosen `tol`, or use method=\"dense\""
+                    "iterative method did not reach tol={tol:e} within {iterations} iterations \
+                     (largest residual {worst:e}); raise `max_iter`/`max_steps`, loosen `tol`, or use method=\"dense\""
                 )
             }
             NumericalError::EigenFailed(s) => write!(f, "dense eigensolver failed: {s}"),

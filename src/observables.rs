@@ -63,3 +63,68 @@ pub fn oscillator_strengths(s: &Spectrum) -> Result<Mat<f64>> {
     let h2m = s.units.hbar2_over_2me();
     Ok(Mat::from_fn(k, k, |i, j| (s.energies[j] - s.energies[i]) * d[(i, j)] * d[(i, j)] * masses[i] / h2m))
 }
+
+/// Line shape of a broadened transition. Parsed from a string at the Python edge.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LineShape {
+    /// (γ/π) / (ΔE² + γ²), γ = half width at half maximum.
+    Lorentzian,
+    /// exp(−ΔE²/2σ²) / (σ√(2π)), σ = standard deviation.
+    Gaussian,
+}
+
+impl LineShape {
+    pub const CHOICES: [&'static str; 2] = ["lorentzian", "gaussian"];
+
+    pub fn parse(s: &str) -> std::result::Result<Self, crate::error::InputError> {
+        match s {
+            "lorentzian" => Ok(LineShape::Lorentzian),
+            "gaussian" => Ok(LineShape::Gaussian),
+            _ => Err(crate::error::InputError::UnknownOption {
+                argument: "shape".into(),
+                got: s.into(),
+                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
+            }),
+        }
+    }
+
+    fn value(self, de: f64, width: f64) -> f64 {
+        match self {
+            LineShape::Lorentzian => width / std::f64::consts::PI / (de * de + width * width),
+            LineShape::Gaussian => (-0.5 * (de / width).powi(2)).exp() / (width * (2.0 * std::f64::consts::PI).sqrt()),
+        }
+    }
+}
+
+/// Absorption spectrum from state `initial`: A(E) = Σ_{f>initial} f_{if} · L(E − (E_f − E_i)),
+/// with L a unit-area line of width `broadening` (energy units). Dimensionless
+/// oscillator strength per unit energy; multiply by the material prefactor
+/// (π e²ħ/(2 ε₀ n c m*) × sheet density / period) for an absorption coefficient.
+pub fn absorption(s: &Spectrum, energies: &[f64], broadening: f64, shape: LineShape, initial: usize) -> Result<Vec<f64>> {
+    crate::error::check_positive("broadening", broadening)?;
+    crate::error::check_finite("energies", energies)?;
+    if initial >= s.count() {
+        return Err(crate::error::InputError::range("initial", format!("a state index in [0, {}]", s.count() - 1), initial).into());
+    }
+    let f = oscillator_strengths(s)?;
+    let lines: Vec<(f64, f64)> = (initial + 1..s.count()).map(|j| (s.energies[j] - s.energies[initial], f[(initial, j)])).collect();
+    Ok(energies.iter().map(|&e| lines.iter().map(|&(de, fij)| fij * shape.value(e - de, broadening)).sum()).collect())
+}
+
+/// ⟨i|g(x)|i⟩ for every state, with g sampled on a uniform grid `xs` (ascending,
+/// covering the states): trapezoid rule on |ψ_i(x)|² g(x). Accuracy is that of the
+/// trapezoid rule on `xs` (spectrally accurate for smooth, decayed states).
+pub fn expectation(s: &Spectrum, xs: &[f64], g: &[f64]) -> Result<Vec<f64>> {
+    let psi = s.wavefunctions(xs)?;
+    let n = xs.len();
+    Ok((0..s.count())
+        .map(|j| {
+            (0..n.saturating_sub(1))
+                .map(|i| {
+                    let h = xs[i + 1] - xs[i];
+                    0.5 * h * (psi[(i, j)].powi(2) * g[i] + psi[(i + 1, j)].powi(2) * g[i + 1])
+                })
+                .sum()
+        })
+        .collect())
+}

@@ -381,12 +381,6 @@ def test_save_load_energies(matrix_case, tmp_path):
     np.testing.assert_array_equal(t.residuals, s.residuals)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="library bug: specwell.io.save stores only the FourierGrid and the node masses of a "
-    "heterostructure Spectrum, so load() rebuilds a plain-grid Spectrum whose wavefunctions "
-    "and dipoles are wrong (not normalised)",
-)
 def test_save_load_wavefunctions(matrix_case, tmp_path):
     _, _, s = matrix_case
     path = os.fspath(tmp_path / "layered.npz")

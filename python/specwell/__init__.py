@@ -10,6 +10,7 @@ Model limits: single-particle, single-band effective-mass Schrödinger equation
 
 from specwell._core import (
     METHODS,
+    Batch,
     UNITS,
     ConvergenceError,
     FourierGrid,
@@ -22,12 +23,14 @@ from specwell._core import (
     SplitStep,
     __version__,
     eigh,
+    solve_batch,
 )
 from specwell.io import load, save
 from specwell.states import autocorrelation_spectrum, eigenstate, gaussian_packet, superposition
 
 __all__ = [
     "METHODS",
+    "Batch",
     "UNITS",
     "ConvergenceError",
     "FourierGrid",
@@ -45,5 +48,6 @@ __all__ = [
     "gaussian_packet",
     "load",
     "save",
+    "solve_batch",
     "superposition",
 ]

@@ -231,7 +231,10 @@ class Spectrum:
         """Unit system name."""
     @property
     def basis(self) -> Union[HermiteBasis, FourierGrid]:
-        """The basis."""
+        """The basis (for a heterostructure: the grid it was built on)."""
+    @property
+    def heterostructure(self) -> Optional[Heterostructure]:
+        """The Heterostructure of a layered spectrum, else None."""
     def wavefunctions(self, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) for every state, shape (count, len(x)), normalised ∫|ψ|² dx = 1.
 

@@ -117,6 +117,130 @@ def quartic_hermite_200(args: argparse.Namespace) -> Row:
                "numpy hermgauss + recurrence + eigh(subset)", "ratio ≥ 4", f"max |ΔE| {err:.1e}")
 
 
+# ------------------------------------------------------------ matrix-free lowest states
+def _grid_matrix(n: int, pot):
+    grid = sw.FourierGrid(-20.0, 20.0, n)
+    return grid, sw.Hamiltonian(grid, pot)
+
+
+def _lowest_iterative_vs_dense(n: int, count: int, args, extrapolate_from=None) -> Row:
+    import scipy.linalg
+
+    pot = lambda x: 0.5 * x**2 + 0.01 * x**4  # noqa: E731
+    grid, h = _grid_matrix(n, pot)
+    r = 2 if args.quick else 3
+    t_sw = best_time(lambda: h.solve(count, method="iterative"), r)
+    e_sw = h.solve(count, method="iterative").energies
+    if extrapolate_from is None:
+        a = h.matrix()
+        t_sp = best_time(lambda: scipy.linalg.eigh(a, subset_by_index=[0, count - 1], eigvals_only=True), 1, 0.0)
+        e_sp = scipy.linalg.eigh(a, subset_by_index=[0, count - 1], eigvals_only=True)
+        how = "scipy.linalg.eigh(subset_by_index) on the dense grid matrix"
+        agree = f"max |ΔE| {np.max(np.abs(e_sw - e_sp)):.1e}"
+    else:
+        # O(N³) extrapolation from two measured sizes (said so in the row).
+        n1, n2 = extrapolate_from
+        ts = []
+        for m in (n1, n2):
+            a = _grid_matrix(m, pot)[1].matrix()
+            ts.append(best_time(lambda: scipy.linalg.eigh(a, subset_by_index=[0, count - 1], eigvals_only=True), 1, 0.0))
+        p = np.log(ts[1] / ts[0]) / np.log(n2 / n1)
+        t_sp = ts[1] * (n / n2) ** p
+        how = f"scipy eigh(subset), extrapolated from N={n1},{n2} (measured exponent {p:.2f})"
+        agree = f"E0 error vs (n+½)-like reference: {abs(e_sw[0] - _grid_matrix(2048, pot)[1].solve(1).energies[0]):.1e}"
+    return Row(f"lowest {count}, N={n}", t_sw, t_sp, how, "", agree)
+
+
+@bench
+def iterative_2048(args: argparse.Namespace) -> Row:
+    row = _lowest_iterative_vs_dense(2048, 10, args)
+    row.target = "ratio ≥ 20"
+    return row
+
+
+@bench
+def iterative_8192(args: argparse.Namespace) -> Row:
+    row = _lowest_iterative_vs_dense(8192, 10, args, extrapolate_from=(2048, 4096))
+    row.target = "ratio ≥ 100"
+    return row
+
+
+@bench
+def iterative_equal_accuracy(args: argparse.Namespace) -> Row:
+    """Smooth double well, lowest 10 to 1e-8 relative: specwell (N by convergence) vs FD + eigsh shift-invert."""
+    import scipy.sparse
+    import scipy.sparse.linalg
+
+    pot = lambda x: 0.05 * (x**2 - 9.0) ** 2 - 2.0  # noqa: E731
+    lo, hi, count = -10.0, 10.0, 10
+    ref = sw.Hamiltonian(sw.FourierGrid(lo, hi, 1024), pot).solve(count, method="dense").energies
+    scale = np.maximum(np.abs(ref), 1.0)
+    n_sw = 64
+    while np.max(np.abs(sw.Hamiltonian(sw.FourierGrid(lo, hi, n_sw), pot).solve(count).energies - ref) / scale) > 1e-8:
+        n_sw = int(n_sw * 1.25)
+
+    def fd(n):
+        x = np.linspace(lo, hi, n + 2)[1:-1]
+        h = x[1] - x[0]
+        main = 1.0 / h**2 + pot(x)
+        off = -0.5 / h**2 * np.ones(n - 1)
+        a = scipy.sparse.diags([off, main, off], [-1, 0, 1], format="csc")
+        return np.sort(scipy.sparse.linalg.eigsh(a, k=count, sigma=ref[0] - 1.0, which="LM", return_eigenvectors=False))
+
+    n_fd = 2000
+    while np.max(np.abs(fd(n_fd) - ref) / scale) > 1e-8 and n_fd < 20_000_000:
+        n_fd = int(n_fd * 1.6)
+    err_fd = np.max(np.abs(fd(n_fd) - ref) / scale)
+    r = 2 if args.quick else 3
+    t_sw = best_time(lambda: sw.Hamiltonian(sw.FourierGrid(lo, hi, n_sw), pot).solve(count), r)
+    t_fd = best_time(lambda: fd(n_fd), 1, 0.0)
+    return Row("double well, lowest 10 to 1e-8", t_sw, t_fd,
+               f"2nd-order FD ({n_fd} pts) + eigsh(sigma) shift-invert", "ratio ≥ 30",
+               f"specwell N={n_sw}; FD rel. err {err_fd:.1e}")
+
+
+@bench
+def iterative_2p20_memory(args: argparse.Namespace) -> Row:
+    """Lowest 5 states at N = 2^20 in a fresh process: wall time and peak RSS."""
+    import subprocess
+    import sys
+
+    code = (
+        "import resource, time, numpy as np, specwell as sw\n"
+        "g = sw.FourierGrid(-400.0, 400.0, 1 << 20)\n"
+        "h = sw.Hamiltonian(g, lambda x: np.minimum(0.5 * x**2, 200.0))\n"
+        "t = time.perf_counter(); s = h.solve(5, method='iterative'); t = time.perf_counter() - t\n"
+        "print(t, resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, np.max(np.abs(s.energies - np.arange(5) - 0.5)))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.split()
+    t, rss_kib, err = float(out[0]), int(out[1]), float(out[2])
+    return Row("lowest 5, N=2^20 (fresh process)", t, float("nan"), "—",
+               f"peak RSS {rss_kib / 1024:.0f} MiB (target < 1024)", f"max |E − (n+½)| {err:.1e}")
+
+
+# -------------------------------------------------------------------- batch sweeps
+@bench
+def batch_field_sweep(args: argparse.Namespace) -> Row:
+    """200-point field sweep, lowest 5, N = 512: solve_batch vs a numpy/scipy loop."""
+    import scipy.linalg
+
+    grid = sw.FourierGrid(-30.0, 30.0, 512)
+    x = grid.x
+    fields = np.linspace(0.0, 0.05, 200)
+    pots = np.array([0.15 * x**2 + f * x for f in fields])
+    t_kin = sw.Hamiltonian(grid, np.zeros(512)).matrix()
+
+    def scipy_loop():
+        return np.array([scipy.linalg.eigh(t_kin + np.diag(p), subset_by_index=[0, 4], eigvals_only=True) for p in pots])
+
+    r = 2 if args.quick else 3
+    t_sw = best_time(lambda: sw.solve_batch(grid, pots, 5, method="iterative", tol=1e-8), r)
+    t_sp = best_time(scipy_loop, 1, 0.0)
+    err = np.max(np.abs(sw.solve_batch(grid, pots, 5, method="iterative", tol=1e-8).energies - scipy_loop()))
+    return Row("200-field sweep, lowest 5, N=512", t_sw, t_sp, "loop of scipy.linalg.eigh(subset_by_index)",
+               "ratio ≥ 20", f"max |ΔE| {err:.1e}")
+
+
 # ------------------------------------------------------------------- propagation
 def _numpy_split_step(psi, vphase, kphase, steps):
     """The best plain numpy/scipy loop: scipy.fft in place, phases precomputed, half kicks merged.

@@ -49,6 +49,10 @@ def save(result, path: Union[str, os.PathLike]) -> None:
                   "method": result.method, "iterations": result.iterations,
                   "basis": _basis_header(result.basis), "mass_is_array": False}
         mass = result._mass
+        stack = result.heterostructure
+        if stack is not None:
+            header["heterostructure"] = {"field_kv_cm": stack.field_kv_cm,
+                                         "layers": [[l.thickness, l.band_edge, l.mass] for l in stack.layers]}
         arrays = dict(energies=result.energies, vectors=result.vectors, residuals=result.residuals,
                       x=result.x)
         if isinstance(mass, np.ndarray):
@@ -79,6 +83,10 @@ def load(path: Union[str, os.PathLike]):
         if kind == "Spectrum":
             basis = _basis_from_header(header["basis"])
             mass = f["mass"] if header["mass_is_array"] else header["mass"]
+            if "heterostructure" in header:
+                h = header["heterostructure"]
+                stack = _core.Heterostructure([_core.Layer(*l) for l in h["layers"]], h["field_kv_cm"])
+                basis = (basis, stack)
             return _core._spectrum_from_parts(basis, header["units"], mass, f["energies"], f["vectors"],
                                               f["residuals"], header["method"], header["iterations"])
         loaders = _LOADERS.get(kind)

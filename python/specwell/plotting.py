@@ -6,7 +6,7 @@ from typing import Optional, Sequence
 
 import numpy as np
 
-__all__ = ["plot_levels"]
+__all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack"]
 
 
 def _axes(ax):
@@ -72,4 +72,192 @@ def plot_levels(spectrum, potential, x: Optional[Sequence[float]] = None, *, sca
     lu, eu = (units.split(", ") + ["", ""])[:2] if units else ("", "")
     ax.set_xlabel(f"x ({lu})" if lu else "x")
     ax.set_ylabel(f"energy ({eu})" if eu else "energy")
+    return ax
+
+
+def _unit_labels(units: Optional[str]) -> tuple:
+    """(length, energy, time) axis-label units of a unit system name ("" when dimensionless)."""
+    return {"semiconductor": ("nm", "meV", "fs"), "atomic": ("bohr", "hartree", "a.u.")}.get(units or "", ("", "", ""))
+
+
+def _label(name: str, unit: str) -> str:
+    return f"{name} ({unit})" if unit else name
+
+
+def plot_density(run, ax=None, *, log: bool = False, vmin: Optional[float] = None, cmap: str = "viridis",
+                 colorbar: bool = True, potential=None, xlim: Optional[Sequence[float]] = None):
+    """Space-time map of the probability density |ψ(x, t)|² of a propagation run.
+
+    Parameters
+    ----------
+    run : Run
+        Result of ``SplitStep.run``; uses ``run.x``, ``run.times`` and ``run.states``.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    log : bool
+        Colour by log10 |ψ|² (shows small transmitted or reflected parts).
+    vmin : float, optional
+        Lower colour limit (of log10 |ψ|² when ``log``; default: 6 decades below the maximum).
+    cmap : str
+        Matplotlib colour map.
+    colorbar : bool
+        Add a colour bar.
+    potential : callable or ndarray, optional
+        V(x) (callable or samples on ``run.x``); drawn as white contour lines of its
+        non-zero regions (e.g. barriers) over the map.
+    xlim : (float, float), optional
+        Horizontal range (length units).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        x on the horizontal axis, time on the vertical axis.
+    """
+    ax = _axes(ax)
+    x = np.asarray(run.x, dtype=float)
+    t = np.asarray(run.times, dtype=float)
+    rho = np.abs(np.asarray(run.states)) ** 2
+    if rho.ndim != 2 or rho.shape != (len(t), len(x)):
+        raise ValueError(f"`run.states` must have shape (len(run.times), len(run.x)) = ({len(t)}, {len(x)}); "
+                         f"got {rho.shape}")
+    if log:
+        top = float(np.max(rho)) if rho.size else 1.0
+        data = np.log10(np.maximum(rho, top * 1e-300 if top > 0 else 1e-300))
+        lo = np.log10(top) - 6.0 if vmin is None and top > 0 else vmin
+        label = "log10 |ψ|²"
+    else:
+        data, lo, label = rho, (0.0 if vmin is None else vmin), "|ψ|²"
+    if len(t) > 1:
+        extent_t = (t[0], t[-1])
+    else:
+        extent_t = (t[0] - 0.5, t[0] + 0.5)
+    dx = x[1] - x[0] if len(x) > 1 else 1.0
+    mesh = ax.imshow(data, origin="lower", aspect="auto", cmap=cmap, vmin=lo, interpolation="nearest",
+                     extent=(x[0] - dx / 2, x[-1] + dx / 2, extent_t[0], extent_t[1]))
+    if potential is not None:
+        v = potential(x) if callable(potential) else np.asarray(potential, dtype=float)
+        if v.shape != x.shape:
+            raise ValueError(f"`potential` must give {len(x)} samples on run.x; got shape {v.shape}")
+        span = np.ptp(v)
+        if span > 0:
+            mask = np.abs(v - np.median(v)) > 0.05 * span
+            edges = np.flatnonzero(np.diff(mask.astype(int)))
+            for i in edges:
+                ax.axvline(0.5 * (x[i] + x[i + 1]), color="w", lw=0.7, alpha=0.8)
+    if colorbar:
+        ax.figure.colorbar(mesh, ax=ax, label=label)
+    lu, _, tu = _unit_labels(getattr(run, "units", None))
+    ax.set_xlabel(_label("x", lu))
+    ax.set_ylabel(_label("t", tu))
+    if xlim is not None:
+        ax.set_xlim(*xlim)
+    return ax
+
+
+def plot_convergence(sizes, errors, ax=None, *, labels: Optional[Sequence[str]] = None,
+                     slopes: Optional[Sequence[float]] = None, floor: Optional[float] = None,
+                     xlabel: str = "basis size N", ylabel: str = "|E_N − E_ref|", marker: str = "o"):
+    """Log-log plot of an energy error against basis size, with optional reference slopes N^(−p).
+
+    Parameters
+    ----------
+    sizes : array_like, shape (n,)
+        Basis sizes (> 0).
+    errors : array_like, shape (n,) or (n, k)
+        Errors; each column of a 2-D array is one curve (e.g. one level or one basis).
+        Zero errors (exact agreement) are drawn at the smallest positive error / 10.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    labels : sequence of str, optional
+        Legend label per curve.
+    slopes : sequence of float, optional
+        Orders p of reference lines ∝ N^(−p), anchored at the first point of the first curve.
+    floor : float, optional
+        Draw a horizontal line at this error (e.g. the round-off level).
+    xlabel, ylabel : str
+        Axis labels.
+    marker : str
+        Marker of the data points.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    ax = _axes(ax)
+    n = np.asarray(sizes, dtype=float)
+    err = np.abs(np.asarray(errors, dtype=float))
+    if err.ndim == 1:
+        err = err[:, None]
+    if n.ndim != 1 or err.ndim != 2 or err.shape[0] != n.shape[0]:
+        raise ValueError(f"`errors` must have shape ({n.shape[0]},) or ({n.shape[0]}, k); got {np.shape(errors)}")
+    if np.any(n <= 0):
+        raise ValueError("`sizes` must all be > 0")
+    if labels is not None and len(labels) != err.shape[1]:
+        raise ValueError(f"`labels` must have one entry per curve ({err.shape[1]}); got {len(labels)}")
+    positive = err[err > 0]
+    tiny = positive.min() / 10 if positive.size else 1e-16
+    plotted = np.where(err > 0, err, tiny)
+    for j in range(err.shape[1]):
+        ax.loglog(n, plotted[:, j], marker=marker, label=None if labels is None else labels[j])
+    for p in slopes or ():
+        ref = plotted[0, 0] * (n / n[0]) ** (-float(p))
+        ax.loglog(n, ref, ls=":", color="0.4", lw=1.0, label=f"∝ N^-{p:g}")
+    if floor is not None:
+        ax.axhline(floor, color="0.6", lw=0.8, ls="--", label=f"floor {floor:.0e}")
+    ax.set_xlabel(xlabel)
+    ax.set_ylabel(ylabel)
+    if labels is not None or slopes or floor is not None:
+        ax.legend()
+    ax.grid(True, which="both", alpha=0.3)
+    return ax
+
+
+def plot_potential_stack(stack, ax=None, *, z: Optional[Sequence[float]] = None, padding: Optional[float] = None,
+                         mass: bool = True, interfaces: bool = True):
+    """Band-edge profile V(z) of a Heterostructure, with the effective-mass profile on a twin axis.
+
+    Parameters
+    ----------
+    stack : Heterostructure
+        The layer stack (nm, meV, m_e).
+    ax : matplotlib Axes, optional
+        Axes for the band edge; a new figure is made if omitted. The mass goes on ``ax.twinx()``.
+    z : array_like, optional
+        Plot points (nm); default: 1000 points over the stack plus ``padding`` on both sides.
+    padding : float, optional
+        Barrier padding drawn on each side (nm; default 10 % of the stack thickness).
+    mass : bool
+        Draw m(z) on a right-hand twin axis.
+    interfaces : bool
+        Mark the interfaces with thin vertical lines.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The band-edge Axes (the mass axis is reachable as ``ax.specwell_mass_axis``).
+    """
+    ax = _axes(ax)
+    total = float(stack.total_thickness)
+    if z is None:
+        pad = 0.1 * total if padding is None else float(padding)
+        z = np.linspace(-pad, total + pad, 1000)
+    z = np.asarray(z, dtype=float)
+    v = np.asarray(stack.potential(z))
+    ax.plot(z, v, color="C0", lw=1.6, label="band edge")
+    ax.set_xlabel("z (nm)")
+    ax.set_ylabel("band edge (meV)", color="C0")
+    if interfaces:
+        for zi in np.asarray(stack.interfaces):
+            ax.axvline(zi, color="0.7", lw=0.6, ls=":")
+    if mass:
+        m = np.asarray(stack.mass(z))
+        ax2 = ax.twinx()
+        ax2.plot(z, m, color="C3", lw=1.0, ls="--", label="mass")
+        ax2.set_ylabel("effective mass (m_e)", color="C3")
+        lo, hi = float(m.min()), float(m.max())
+        margin = 0.1 * (hi - lo) if hi > lo else 0.1 * max(hi, 1e-3)
+        ax2.set_ylim(lo - margin, hi + margin)
+        ax.specwell_mass_axis = ax2
+    else:
+        ax.specwell_mass_axis = None
     return ax

@@ -160,13 +160,16 @@ pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
 pub fn solve_with_par(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
     check_count(opts.count, h.size())?;
     check_tol(opts.tol)?;
+    if let Some(init) = &opts.initial {
+        crate::error::check_finite("initial", init)?;
+    }
     let method = opts.method.resolve(h, opts.count);
     let (energies, mut vectors, iterations) = match method {
         Method::Dense | Method::Auto => {
             let (e, v) = dense::lowest(h, opts.count, par)?;
             (e, v, 0)
         }
-        Method::Iterative => matrix_free::solve_hamiltonian(h, opts)?,
+        Method::Iterative => matrix_free::solve_hamiltonian(h, opts).map_err(absolute_residuals)?,
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(h, &energies, &vectors);
@@ -217,9 +220,18 @@ pub fn solve_batch(
                     let mut out: Vec<Spectrum> = Vec::with_capacity(items.len());
                     let mut oi = o.clone();
                     for v in items {
-                        if let Some(prev) = out.last() {
-                            let m = &prev.vectors;
-                            oi.initial = Some((0..m.ncols()).flat_map(|j| (0..m.nrows()).map(move |i| m[(i, j)])).collect());
+                        // Warm start: the previous item's vectors, linearly extrapolated from
+                        // the two previous items when available (signs are deterministic).
+                        let k = out.len();
+                        if k >= 1 {
+                            let m1 = &out[k - 1].vectors;
+                            let (n, c) = (m1.nrows(), m1.ncols());
+                            oi.initial = Some(if k >= 2 {
+                                let m0 = &out[k - 2].vectors;
+                                (0..c).flat_map(|j| (0..n).map(move |i| 2.0 * m1[(i, j)] - m0[(i, j)])).collect()
+                            } else {
+                                (0..c).flat_map(|j| (0..n).map(move |i| m1[(i, j)])).collect()
+                            });
                         }
                         out.push(solve_with_par(&build(v)?, &oi, faer::Par::Seq)?);
                     }
@@ -233,5 +245,18 @@ pub fn solve_batch(
             Ok(all)
         }
         _ => potentials.par_iter().map(|v| solve_with_par(&build(v)?, &o, faer::Par::Seq)).collect(),
+    }
+}
+
+/// The LOBPCG core reports relative residuals ‖Hψ − Eψ‖/max(1, |E|); the public
+/// contract (Spectrum.residuals, ConvergenceError.residuals) is absolute.
+fn absolute_residuals(e: crate::error::Error) -> crate::error::Error {
+    use crate::error::{Error, NumericalError};
+    match e {
+        Error::Numerical(NumericalError::NotConverged { iterations, tol, energies, residuals }) => {
+            let residuals = residuals.iter().zip(&energies).map(|(r, e)| r * e.abs().max(1.0)).collect();
+            Error::Numerical(NumericalError::NotConverged { iterations, tol, energies, residuals })
+        }
+        other => other,
     }
 }

@@ -350,10 +350,56 @@ impl PySpectrum {
     fn count(&self) -> usize {
         self.inner.count()
     }
+    /// The Heterostructure of a layered spectrum (None for the other bases).
+    #[getter]
+    fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
+        match &self.inner.basis {
+            BasisRef::Layered(l) => Ok(Some(Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?)),
+            _ => Ok(None),
+        }
+    }
     /// The mass as given to the Hamiltonian (float or grid array); used by `specwell.save`.
     #[getter]
     fn _mass(&self, py: Python<'_>) -> Py<PyAny> {
         mass_to_py(py, &self.inner.mass)
+    }
+    /// Broadened absorption from state `initial`: Σ_f f_if·L(E − (E_f − E_i)), shape (len(energies),).
+    #[pyo3(signature = (energies, broadening, shape="lorentzian", initial=0))]
+    fn absorption<'py>(
+        &self,
+        py: Python<'py>,
+        energies: &Bound<'py, PyAny>,
+        broadening: f64,
+        shape: &str,
+        initial: usize,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let shape = observables::LineShape::parse(shape).py(py)?;
+        let e = vec_f64(energies, "energies", None)?;
+        let a = observables::absorption(&self.inner, &e, broadening, shape, initial).py(py)?;
+        Ok(PyArray1::from_vec(py, a))
+    }
+    /// ⟨n|g(x)|n⟩ for every state: `g` a vectorised callable (or None for x), integrated by
+    /// the trapezoid rule on `points` uniform points spanning the basis' own points.
+    #[pyo3(signature = (g=None, points=8192))]
+    fn expectation<'py>(&self, py: Python<'py>, g: Option<&Bound<'py, PyAny>>, points: usize) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let pts = self.inner.basis.as_dyn().points();
+        let (lo, hi) = pts.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        if points < 16 {
+            return Err(pyo3::exceptions::PyValueError::new_err(format!("`points` must be an integer >= 16; got {points}")));
+        }
+        let xs: Vec<f64> = (0..points).map(|i| lo + (hi - lo) * i as f64 / (points - 1) as f64).collect();
+        let gv = match g {
+            None => xs.clone(),
+            Some(f) => {
+                let arr = PyArray1::from_slice(py, &xs);
+                let v = vec_f64(&f.call1((arr,))?, "g", Some(points))?;
+                crate::error::check_finite("g", &v).py(py)?;
+                v
+            }
+        };
+        let s = self.inner.clone();
+        let out = py.detach(move || observables::expectation(&s, &xs, &gv)).py(py)?;
+        Ok(PyArray1::from_vec(py, out))
     }
     /// Save to a `.npz` file (see `specwell.save`).
     fn save(slf: &Bound<'_, Self>, path: &Bound<'_, PyAny>) -> PyResult<()> {
@@ -470,4 +516,114 @@ pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py,
         })
         .py(py)?;
     Ok((PyArray1::from_vec(py, vals), mat_to_py(py, vecs.as_ref())))
+}
+
+/// Spectra of many potentials on one basis (see `solve_batch`).
+#[pyclass(name = "Batch", module = "specwell._core", frozen)]
+pub struct PyBatch {
+    items: Vec<Arc<Spectrum>>,
+}
+
+#[pymethods]
+impl PyBatch {
+    /// Energies, shape (M, count).
+    #[getter]
+    fn energies<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let count = self.items.first().map(|s| s.count()).unwrap_or(0);
+        let data: Vec<f64> = self.items.iter().flat_map(|s| s.energies.iter().cloned()).collect();
+        let a = ndarray::Array2::from_shape_vec((self.items.len(), count), data)
+            .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
+        Ok(PyArray2::from_owned_array(py, a))
+    }
+    /// Residual norms, shape (M, count).
+    #[getter]
+    fn residuals<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let count = self.items.first().map(|s| s.count()).unwrap_or(0);
+        let data: Vec<f64> = self.items.iter().flat_map(|s| s.residuals.iter().cloned()).collect();
+        let a = ndarray::Array2::from_shape_vec((self.items.len(), count), data)
+            .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
+        Ok(PyArray2::from_owned_array(py, a))
+    }
+    /// The Spectrum of item i (negative indices count from the end).
+    fn __getitem__(&self, i: isize) -> PyResult<PySpectrum> {
+        let m = self.items.len() as isize;
+        let j = if i < 0 { i + m } else { i };
+        if !(0..m).contains(&j) {
+            return Err(pyo3::exceptions::PyIndexError::new_err(format!("batch index must be in [{}, {}]; got {i}", -m, m - 1)));
+        }
+        Ok(PySpectrum { inner: self.items[j as usize].clone() })
+    }
+    fn __len__(&self) -> usize {
+        self.items.len()
+    }
+    /// ψ_n(x) of item `index`, shape (count, len(x)).
+    #[pyo3(signature = (index, x=None))]
+    fn wavefunctions<'py>(&self, py: Python<'py>, index: isize, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        self.__getitem__(index)?.wavefunctions(py, x)
+    }
+    fn __repr__(&self) -> String {
+        format!("Batch(items={}, count={})", self.items.len(), self.items.first().map(|s| s.count()).unwrap_or(0))
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, (Vec<PySpectrum>,))> {
+        let py = slf.py();
+        let ctor = py.import("specwell._core")?.getattr("_batch_from_spectra")?;
+        Ok((ctor, (slf.get().items.iter().map(|s| PySpectrum { inner: s.clone() }).collect(),)))
+    }
+}
+
+/// Rebuild a Batch from its spectra (target of `Batch.__reduce__`).
+#[pyfunction]
+pub fn _batch_from_spectra(spectra: Vec<PyRef<'_, PySpectrum>>) -> PyBatch {
+    PyBatch { items: spectra.iter().map(|s| s.inner.clone()).collect() }
+}
+
+/// Solve many potentials on one basis in parallel (rayon, GIL released).
+#[pyfunction]
+#[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10))]
+#[allow(clippy::too_many_arguments)]
+pub fn solve_batch(
+    py: Python<'_>,
+    basis: &Bound<'_, PyAny>,
+    potentials: &Bound<'_, PyAny>,
+    count: &Bound<'_, PyAny>,
+    mass: Option<&Bound<'_, PyAny>>,
+    units: &str,
+    method: &str,
+    tol: f64,
+) -> PyResult<PyBatch> {
+    let units = Units::parse(units).py(py)?;
+    let method = Method::parse(method).py(py)?;
+    let b = extract_basis(basis, "basis")?;
+    let n_points = b.as_dyn().points().len();
+    // An (M, N) array, or a sequence of callables / arrays on basis.x.
+    let rows: Vec<Vec<f64>> = match super::arrays::mat_f64(potentials, "potentials") {
+        Ok((r, c, data)) => {
+            if c != n_points || r == 0 {
+                return Err(pyo3::exceptions::PyValueError::new_err(format!(
+                    "`potentials` must have shape (M, {n_points}) with M >= 1 (samples on basis.x); got ({r}, {c})"
+                )));
+            }
+            data.chunks(c).map(|ch| ch.to_vec()).collect()
+        }
+        Err(_) => {
+            let mut out = Vec::new();
+            for (i, item) in potentials
+                .try_iter()
+                .map_err(|_| PyTypeError::new_err("`potentials` must be an (M, N) array or a sequence of callables/arrays"))?
+                .enumerate()
+            {
+                out.push(potential_samples(&item?, &b, &format!("potentials[{i}]"))?);
+            }
+            out
+        }
+    };
+    let m = match mass {
+        None => Mass::Uniform(1.0),
+        Some(obj) => extract_mass(obj, &b)?,
+    };
+    let mut opts = SolveOptions::new(to_usize(count, "count", 1, b.as_dyn().size())?);
+    opts.method = method;
+    opts.tol = tol;
+    let spectra = py.detach(move || eigen::solve_batch(&b, &rows, &m, units, &opts)).py(py)?;
+    Ok(PyBatch { items: spectra.into_iter().map(Arc::new).collect() })
 }

@@ -18,6 +18,9 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<basis::PyFourierGrid>()?;
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
+    m.add_class::<hamiltonian::PyBatch>()?;
+    m.add_function(wrap_pyfunction!(hamiltonian::solve_batch, m)?)?;
+    m.add_function(wrap_pyfunction!(hamiltonian::_batch_from_spectra, m)?)?;
     m.add_class::<layers::PyLayer>()?;
     m.add_class::<layers::PyHeterostructure>()?;
     m.add_class::<propagate::PySplitStep>()?;
