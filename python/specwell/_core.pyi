@@ -251,6 +251,30 @@ class Spectrum:
         m_i is the mass, or ⟨i|m(x)|i⟩ for a position-dependent mass (then the
         Thomas-Reiche-Kuhn sum rule holds only approximately).
         """
+    def absorption(self, energies: npt.ArrayLike, broadening: float, shape: str = "lorentzian",
+                   initial: int = 0) -> npt.NDArray[np.float64]:
+        """Broadened absorption from state ``initial``: Σ_f f_if·L(E − (E_f − E_i)).
+
+        Parameters
+        ----------
+        energies : array_like
+            Photon energies (energy units).
+        broadening : float
+            Line width (> 0): half width at half maximum (Lorentzian) or standard deviation (Gaussian).
+        shape : {"lorentzian", "gaussian"}
+            Unit-area line shape.
+        initial : int
+            Initial state index.
+
+        Returns
+        -------
+        ndarray
+            Oscillator strength per unit energy; multiply by the material prefactor for an
+            absorption coefficient.
+        """
+    def expectation(self, g: Optional[Callable[[npt.NDArray[np.float64]], npt.ArrayLike]] = None,
+                    points: int = 8192) -> npt.NDArray[np.float64]:
+        """⟨n|g(x)|n⟩ for every state (g=None: ⟨x⟩), trapezoid rule on ``points`` uniform points."""
     def save(self, path: str) -> None:
         """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
     def __len__(self) -> int: ...
@@ -445,3 +469,45 @@ class Run:
 
 def unit_constants(units: str) -> Tuple[float, float]:
     """(ħ²/2m_e, ħ) of a unit system, in energy·length² and energy·time."""
+
+class Batch:
+    """Spectra of many potentials on one basis (returned by ``solve_batch``)."""
+
+    @property
+    def energies(self) -> npt.NDArray[np.float64]:
+        """Energies, shape (M, count)."""
+    @property
+    def residuals(self) -> npt.NDArray[np.float64]:
+        """Residual norms, shape (M, count)."""
+    def wavefunctions(self, index: int, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
+        """ψ_n(x) of item ``index``, shape (count, len(x))."""
+    def __getitem__(self, i: int) -> Spectrum: ...
+    def __len__(self) -> int: ...
+
+def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.ArrayLike, Sequence[PotentialLike]],
+                count: int, mass: Union[float, PotentialLike, None] = None, units: str = "natural",
+                method: str = "auto", tol: float = 1e-10) -> Batch:
+    """Lowest ``count`` states of many potentials on one basis, in parallel (rayon, GIL released).
+
+    Parameters
+    ----------
+    basis : HermiteBasis or FourierGrid
+        Shared basis.
+    potentials : array_like (M, N) or sequence of callables/arrays
+        Potentials sampled on ``basis.x`` (or callables evaluated there).
+    count : int
+        States per item.
+    mass, units, method, tol
+        As for ``Hamiltonian`` and ``Hamiltonian.solve``. With ``method="iterative"`` each thread
+        walks a contiguous chunk of the sweep and warm-starts every item from the linear
+        extrapolation of the two previous items' eigenvectors.
+
+    Returns
+    -------
+    Batch
+    """
+
+def _spectrum_from_parts(*args: object) -> Spectrum: ...
+def _split_step_from_parts(*args: object) -> SplitStep: ...
+def _batch_from_spectra(spectra: Sequence[Spectrum]) -> Batch: ...
+def _bare_fft_pair_seconds(n: int, reps: int) -> float: ...
