@@ -113,6 +113,16 @@ impl From<NumericalError> for Error {
 
 pub type Result<T> = std::result::Result<T, Error>;
 
+/// Look an option string up in a table of (name, value) pairs; unknown strings give an
+/// error naming `argument` and listing every choice.
+pub fn parse_choice<T: Copy>(argument: &str, got: &str, table: &[(&str, T)]) -> std::result::Result<T, InputError> {
+    table.iter().find(|(name, _)| *name == got).map(|(_, v)| *v).ok_or_else(|| InputError::UnknownOption {
+        argument: argument.into(),
+        got: got.into(),
+        choices: table.iter().map(|(name, _)| name.to_string()).collect(),
+    })
+}
+
 /// Check that every entry of `values` is finite.
 pub fn check_finite(argument: &str, values: &[f64]) -> std::result::Result<(), InputError> {
     match values.iter().position(|v| !v.is_finite()) {

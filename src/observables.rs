@@ -77,15 +77,7 @@ impl LineShape {
     pub const CHOICES: [&'static str; 2] = ["lorentzian", "gaussian"];
 
     pub fn parse(s: &str) -> std::result::Result<Self, crate::error::InputError> {
-        match s {
-            "lorentzian" => Ok(LineShape::Lorentzian),
-            "gaussian" => Ok(LineShape::Gaussian),
-            _ => Err(crate::error::InputError::UnknownOption {
-                argument: "shape".into(),
-                got: s.into(),
-                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
-            }),
-        }
+        crate::error::parse_choice("shape", s, &[("lorentzian", LineShape::Lorentzian), ("gaussian", LineShape::Gaussian)])
     }
 
     fn value(self, de: f64, width: f64) -> f64 {

@@ -48,16 +48,11 @@ impl Units {
 
     /// Parse an option string (exact, lower case).
     pub fn parse(s: &str) -> Result<Self, InputError> {
-        match s {
-            "natural" => Ok(Units::Natural),
-            "atomic" => Ok(Units::Atomic),
-            "semiconductor" => Ok(Units::Semiconductor),
-            _ => Err(InputError::UnknownOption {
-                argument: "units".into(),
-                got: s.into(),
-                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
-            }),
-        }
+        crate::error::parse_choice(
+            "units",
+            s,
+            &[("natural", Units::Natural), ("atomic", Units::Atomic), ("semiconductor", Units::Semiconductor)],
+        )
     }
 
     /// The option string of this system.

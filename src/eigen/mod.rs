@@ -26,16 +26,7 @@ impl Method {
     pub const CHOICES: [&'static str; 3] = ["auto", "dense", "iterative"];
 
     pub fn parse(s: &str) -> std::result::Result<Self, InputError> {
-        match s {
-            "auto" => Ok(Method::Auto),
-            "dense" => Ok(Method::Dense),
-            "iterative" => Ok(Method::Iterative),
-            _ => Err(InputError::UnknownOption {
-                argument: "method".into(),
-                got: s.into(),
-                choices: Self::CHOICES.iter().map(|c| c.to_string()).collect(),
-            }),
-        }
+        crate::error::parse_choice("method", s, &[("auto", Method::Auto), ("dense", Method::Dense), ("iterative", Method::Iterative)])
     }
 
     pub fn name(self) -> &'static str {

@@ -529,20 +529,12 @@ impl PyBatch {
     /// Energies, shape (M, count).
     #[getter]
     fn energies<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        let count = self.items.first().map(|s| s.count()).unwrap_or(0);
-        let data: Vec<f64> = self.items.iter().flat_map(|s| s.energies.iter().cloned()).collect();
-        let a = ndarray::Array2::from_shape_vec((self.items.len(), count), data)
-            .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
-        Ok(PyArray2::from_owned_array(py, a))
+        self.stack_rows(py, |s| &s.energies)
     }
     /// Residual norms, shape (M, count).
     #[getter]
     fn residuals<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        let count = self.items.first().map(|s| s.count()).unwrap_or(0);
-        let data: Vec<f64> = self.items.iter().flat_map(|s| s.residuals.iter().cloned()).collect();
-        let a = ndarray::Array2::from_shape_vec((self.items.len(), count), data)
-            .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
-        Ok(PyArray2::from_owned_array(py, a))
+        self.stack_rows(py, |s| &s.residuals)
     }
     /// The Spectrum of item i (negative indices count from the end).
     fn __getitem__(&self, i: isize) -> PyResult<PySpectrum> {
@@ -568,6 +560,17 @@ impl PyBatch {
         let py = slf.py();
         let ctor = py.import("specwell._core")?.getattr("_batch_from_spectra")?;
         Ok((ctor, (slf.get().items.iter().map(|s| PySpectrum { inner: s.clone() }).collect(),)))
+    }
+}
+
+impl PyBatch {
+    /// One row per item: an (M, count) array of a per-spectrum vector.
+    fn stack_rows<'py>(&self, py: Python<'py>, field: impl Fn(&Spectrum) -> &Vec<f64>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let count = self.items.first().map(|s| s.count()).unwrap_or(0);
+        let data: Vec<f64> = self.items.iter().flat_map(|s| field(s).iter().cloned()).collect();
+        let a = ndarray::Array2::from_shape_vec((self.items.len(), count), data)
+            .map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
+        Ok(PyArray2::from_owned_array(py, a))
     }
 }
 
