@@ -1,16 +1,20 @@
 """Type stubs for the compiled core ``specwell._core``. Import names from ``specwell``."""
 
-from typing import Callable, Optional, Sequence, Tuple, Union
+from typing import Callable, Optional, Sequence, Tuple, Union, final
 
 import numpy as np
 import numpy.typing as npt
 
+__all__ = [
+    "Batch", "ConvergenceError", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
+    "METHODS", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
+    "_batch_from_spectra", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
+]
 __version__: str
 UNITS: list[str]
 METHODS: list[str]
 
-ArrayLike = Union[npt.ArrayLike, Sequence[float]]
-PotentialLike = Union[Callable[[npt.NDArray[np.float64]], npt.ArrayLike], npt.ArrayLike]
+_PotentialLike = Union[Callable[[npt.NDArray[np.float64]], npt.ArrayLike], npt.ArrayLike]
 
 class ConvergenceError(RuntimeError):
     """An iterative method missed its tolerance.
@@ -29,6 +33,7 @@ class ConvergenceError(RuntimeError):
     residuals: list[float]
     iterations: int
 
+@final
 class HermiteBasis:
     """Gauss-Hermite function basis χ_n(x) = ψ_n((x − center)/length)/sqrt(length), n < size.
 
@@ -54,7 +59,7 @@ class HermiteBasis:
         If an argument is outside its range (the message names it).
     """
 
-    def __init__(self, size: int, center: float = 0.0, length: float = 1.0, quadrature: Optional[int] = None) -> None: ...
+    def __new__(cls, size: int, center: float = 0.0, length: float = 1.0, quadrature: Optional[int] = None) -> HermiteBasis: ...
     @property
     def size(self) -> int:
         """Number of basis functions."""
@@ -75,6 +80,7 @@ class HermiteBasis:
         """Dimensionless Gauss-Hermite nodes ξ_k (weight e^{−ξ²})."""
     def __len__(self) -> int: ...
 
+@final
 class FourierGrid:
     """Periodic grid on [start, stop) with ``points`` points (Fourier-grid basis).
 
@@ -91,7 +97,7 @@ class FourierGrid:
     coefficients in this basis are ψ(x_j)·sqrt(dx).
     """
 
-    def __init__(self, start: float, stop: float, points: int) -> None: ...
+    def __new__(cls, start: float, stop: float, points: int) -> FourierGrid: ...
     @property
     def start(self) -> float:
         """Left end of the box."""
@@ -115,6 +121,7 @@ class FourierGrid:
         """Wave numbers 2π·fftfreq(points, dx)."""
     def __len__(self) -> int: ...
 
+@final
 class Hamiltonian:
     """H = T + V on a basis.
 
@@ -141,8 +148,8 @@ class Hamiltonian:
         Wrong basis type, complex or non-numeric potential.
     """
 
-    def __init__(self, basis: Union[HermiteBasis, FourierGrid], potential: PotentialLike,
-                 mass: Union[float, PotentialLike, None] = None, units: str = "natural") -> None: ...
+    def __new__(cls, basis: Union[HermiteBasis, FourierGrid], potential: _PotentialLike,
+                 mass: Union[float, _PotentialLike, None] = None, units: str = "natural") -> Hamiltonian: ...
     def overlap_matrix(self) -> Optional[npt.NDArray[np.float64]]:
         """The overlap matrix B of a heterostructure's generalized problem A c = E B c (None otherwise)."""
     def matrix(self) -> npt.NDArray[np.float64]:
@@ -202,6 +209,7 @@ class Hamiltonian:
     def size(self) -> int:
         """Matrix dimension N."""
 
+@final
 class Spectrum:
     """Lowest eigenpairs of a Hamiltonian (returned by ``Hamiltonian.solve``)."""
 
@@ -290,10 +298,11 @@ def eigh(a: npt.ArrayLike) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.floa
         Eigenvectors as columns.
     """
 
+@final
 class Layer:
     """One layer: thickness (nm, > 0), conduction-band edge (meV), effective mass (m_e, > 0)."""
 
-    def __init__(self, thickness: float, band_edge: float, mass: float) -> None: ...
+    def __new__(cls, thickness: float, band_edge: float, mass: float) -> Layer: ...
     @property
     def thickness(self) -> float:
         """Thickness (nm)."""
@@ -304,6 +313,7 @@ class Layer:
     def mass(self) -> float:
         """Effective mass (m_e)."""
 
+@final
 class Heterostructure:
     """A stack of layers on z ∈ [0, total_thickness) (nm) with an optional uniform field.
 
@@ -316,7 +326,7 @@ class Heterostructure:
         constant outside the stack (no sawtooth in the periodic box).
     """
 
-    def __init__(self, layers: Sequence[Layer], field_kv_cm: float = 0.0) -> None: ...
+    def __new__(cls, layers: Sequence[Layer], field_kv_cm: float = 0.0) -> Heterostructure: ...
     @property
     def layers(self) -> list[Layer]:
         """The layers."""
@@ -335,6 +345,7 @@ class Heterostructure:
         """m(z) (m_e) at points z (nm)."""
     def __len__(self) -> int: ...
 
+@final
 class SplitStep:
     """Split-step Fourier propagator (Feit, Fleck & Steiger 1982) on a FourierGrid.
 
@@ -367,10 +378,10 @@ class SplitStep:
         Propagate in imaginary time (use ``ground_states``).
     """
 
-    def __init__(self, grid: FourierGrid, potential: PotentialLike, mass: float = 1.0, dt: Optional[float] = None,
+    def __new__(cls, grid: FourierGrid, potential: _PotentialLike, mass: float = 1.0, dt: Optional[float] = None,
                  order: Optional[int] = None, units: str = "natural", *, drive: Union[Callable[..., npt.ArrayLike], npt.ArrayLike, None] = None,
-                 drive_potential: Optional[PotentialLike] = None, absorber_width: Optional[float] = None,
-                 absorber_potential: Optional[PotentialLike] = None, imaginary_time: bool = False) -> None: ...
+                 drive_potential: Optional[_PotentialLike] = None, absorber_width: Optional[float] = None,
+                 absorber_potential: Optional[_PotentialLike] = None, imaginary_time: bool = False) -> SplitStep: ...
     def run(self, psi0: npt.ArrayLike, steps: int, record_every: Optional[int] = None, progress: bool = False) -> Run:
         """Propagate ``psi0`` (samples on the grid) for ``steps`` steps.
 
@@ -423,6 +434,7 @@ class SplitStep:
     def potential(self) -> npt.NDArray[np.float64]:
         """Static potential on the grid."""
 
+@final
 class Run:
     """Result of ``SplitStep.run``: records at ``times`` (record 0 = initial state)."""
 
@@ -470,6 +482,7 @@ class Run:
 def unit_constants(units: str) -> Tuple[float, float]:
     """(ħ²/2m_e, ħ) of a unit system, in energy·length² and energy·time."""
 
+@final
 class Batch:
     """Spectra of many potentials on one basis (returned by ``solve_batch``)."""
 
@@ -481,11 +494,11 @@ class Batch:
         """Residual norms, shape (M, count)."""
     def wavefunctions(self, index: int, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) of item ``index``, shape (count, len(x))."""
-    def __getitem__(self, i: int) -> Spectrum: ...
+    def __getitem__(self, key: int, /) -> Spectrum: ...
     def __len__(self) -> int: ...
 
-def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.ArrayLike, Sequence[PotentialLike]],
-                count: int, mass: Union[float, PotentialLike, None] = None, units: str = "natural",
+def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.ArrayLike, Sequence[_PotentialLike]],
+                count: int, mass: Union[float, _PotentialLike, None] = None, units: str = "natural",
                 method: str = "auto", tol: float = 1e-10) -> Batch:
     """Lowest ``count`` states of many potentials on one basis, in parallel (rayon, GIL released).
 
@@ -507,7 +520,14 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.A
     Batch
     """
 
-def _spectrum_from_parts(*args: object) -> Spectrum: ...
-def _split_step_from_parts(*args: object) -> SplitStep: ...
+def _spectrum_from_parts(basis: object, units: str, mass: object, energies: npt.ArrayLike, vectors: npt.ArrayLike,
+                         residuals: npt.ArrayLike, method: str, iterations: int) -> Spectrum: ...
+def _split_step_from_parts(grid: FourierGrid, potential: _PotentialLike, mass: float, dt: float, order: int, units: str,
+                           drive: object, drive_potential: object, absorber_width: Optional[float],
+                           absorber_potential: object, imaginary_time: bool) -> SplitStep: ...
+def _run_from_parts(grid: FourierGrid, units: str, record_steps: Sequence[int], times: Sequence[float],
+                    states: Sequence[complex], norm: Sequence[float], mean_x: Sequence[float], mean_p: Sequence[float],
+                    energy: Sequence[float], autocorrelation: Sequence[complex], absorbed_norm: Optional[float],
+                    steps_done: int, cancelled: bool) -> Run: ...
 def _batch_from_spectra(spectra: Sequence[Spectrum]) -> Batch: ...
 def _bare_fft_pair_seconds(n: int, reps: int) -> float: ...

@@ -475,6 +475,31 @@ impl PyRun {
             r.norm.last().cloned().unwrap_or(0.0)
         )
     }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
+        let py = slf.py();
+        let s = slf.get();
+        let r = &s.inner;
+        let ctor = py.import("specwell._core")?.getattr("_run_from_parts")?;
+        let args = PyTuple::new(
+            py,
+            [
+                s.grid.clone_ref(py).into_any(),
+                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                r.record_steps.clone().into_pyobject(py)?.into_any().unbind(),
+                PyArray1::from_slice(py, &r.times).into_any().unbind(),
+                PyArray1::from_slice(py, &r.states).into_any().unbind(),
+                PyArray1::from_slice(py, &r.norm).into_any().unbind(),
+                PyArray1::from_slice(py, &r.mean_x).into_any().unbind(),
+                PyArray1::from_slice(py, &r.mean_p).into_any().unbind(),
+                PyArray1::from_slice(py, &r.energy).into_any().unbind(),
+                PyArray1::from_slice(py, &r.autocorrelation).into_any().unbind(),
+                r.absorbed_norm.into_pyobject(py)?.into_any().unbind(),
+                r.steps_done.into_pyobject(py)?.into_any().unbind(),
+                r.cancelled.into_pyobject(py)?.to_owned().into_any().unbind(),
+            ],
+        )?;
+        Ok((ctor, args))
+    }
     fn _repr_html_(&self) -> String {
         let r = &self.inner;
         let sym = self.units.symbols();
@@ -498,4 +523,32 @@ impl PyRun {
 #[pyfunction]
 pub fn _bare_fft_pair_seconds(py: Python<'_>, n: usize, reps: usize) -> f64 {
     py.detach(|| crate::propagate::bare_fft_pair_seconds(n, reps))
+}
+
+/// Rebuild a Run from its parts (target of `Run.__reduce__`).
+#[pyfunction]
+#[allow(clippy::too_many_arguments)]
+pub fn _run_from_parts(
+    grid: &Bound<'_, PyFourierGrid>,
+    units: &str,
+    record_steps: Vec<usize>,
+    times: Vec<f64>,
+    states: Vec<Complex64>,
+    norm: Vec<f64>,
+    mean_x: Vec<f64>,
+    mean_p: Vec<f64>,
+    energy: Vec<f64>,
+    autocorrelation: Vec<Complex64>,
+    absorbed_norm: Option<f64>,
+    steps_done: usize,
+    cancelled: bool,
+) -> PyResult<PyRun> {
+    let units = Units::parse(units).map_err(|e| PyValueError::new_err(e.to_string()))?;
+    let n = grid.get().inner.len();
+    let records = times.len();
+    if states.len() != records * n || [norm.len(), mean_x.len(), mean_p.len(), energy.len(), autocorrelation.len(), record_steps.len()].iter().any(|&l| l != records) {
+        return Err(PyValueError::new_err("inconsistent Run parts (record counts differ)"));
+    }
+    let run = Run { n, record_steps, times, states, norm, mean_x, mean_p, energy, autocorrelation, absorbed_norm, steps_done, cancelled };
+    Ok(PyRun::new(run, grid.clone().unbind(), units))
 }
