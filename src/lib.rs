@@ -21,6 +21,10 @@
 //! The pure-Rust core has no Python dependency; the pyo3 bindings live in
 //! [`python`] only.
 
+// No `unwrap` on any path reachable from user input; the few `expect`s left in the
+// iterative solver state internal invariants (a buffer allocated iff B is given).
+#![cfg_attr(not(test), deny(clippy::unwrap_used))]
+
 pub mod basis;
 pub mod eigen;
 pub mod error;
