@@ -1,6 +1,6 @@
 //! Integration tests of the public Rust API against closed-form spectra.
 
-use specwell::basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
+use specwell::basis::{BasisRef, FourierGrid, HermiteBasis};
 use specwell::{solve, Hamiltonian, Mass, SolveOptions, Units};
 use std::sync::Arc;
 

@@ -166,7 +166,7 @@ class Hamiltonian:
         On a FourierGrid the coefficients may equally be grid samples ψ(x_j) (the map is linear).
         """
     def solve(self, count: int, method: str = "auto", tol: float = 1e-10, max_iter: Optional[int] = None,
-              initial: Union[Spectrum, npt.ArrayLike, None] = None, seed: int = 0x5EED) -> Spectrum:
+              initial: Union[Spectrum, npt.ArrayLike, None] = None, seed: Optional[int] = None) -> Spectrum:
         """Lowest ``count`` eigenpairs.
 
         Parameters
@@ -182,8 +182,8 @@ class Hamiltonian:
             Iteration limit of the iterative path.
         initial : Spectrum or array_like (k, N), optional
             Warm start for the iterative path.
-        seed : int
-            Seed of the iterative path's random start block.
+        seed : int, optional
+            Seed of the iterative path's random start block, in [0, 2**63).
 
         Returns
         -------
@@ -408,7 +408,7 @@ class SplitStep:
     def run_many(self, psi0s: npt.ArrayLike, steps: int, record_every: Optional[int] = None) -> list[Run]:
         """Propagate the rows of ``psi0s`` (shape (M, N)) in parallel across cores."""
     def ground_states(self, count: int, tol: float = 1e-9, max_steps: Optional[int] = None,
-                      seed: int = 0x5EED) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.complex128]]:
+                      seed: Optional[int] = None) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.complex128]]:
         """Lowest ``count`` states by imaginary-time propagation with Gram-Schmidt (imaginary_time=True).
 
         Returns

@@ -121,3 +121,11 @@ pub fn complex_array(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<usize>
     }
     Ok((shape, data))
 }
+
+/// A `seed` argument: None (the default seed) or an integer in [0, 2^63).
+pub fn seed_arg(obj: Option<&Bound<'_, PyAny>>) -> PyResult<u64> {
+    match obj {
+        None => Ok(0x5eed),
+        Some(o) => Ok(to_usize(o, "seed", 0, i64::MAX as usize)? as u64),
+    }
+}

@@ -120,7 +120,7 @@ impl PyHamiltonian {
     }
 
     /// The lowest `count` eigenpairs.
-    #[pyo3(signature = (count, method="auto", tol=1e-10, max_iter=None, initial=None, seed=0x5eed))]
+    #[pyo3(signature = (count, method="auto", tol=1e-10, max_iter=None, initial=None, seed=None))]
     fn solve(
         &self,
         py: Python<'_>,
@@ -129,14 +129,14 @@ impl PyHamiltonian {
         tol: f64,
         max_iter: Option<&Bound<'_, PyAny>>,
         initial: Option<&Bound<'_, PyAny>>,
-        seed: u64,
+        seed: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<PySpectrum> {
         let n = self.inner.size();
         let method = Method::parse(method).py(py)?;
         let mut opts = SolveOptions::new(to_usize(count, "count", 1, n)?);
         opts.method = method;
         opts.tol = tol;
-        opts.seed = seed;
+        opts.seed = super::arrays::seed_arg(seed)?;
         opts.max_iter = max_iter.map(|m| to_usize(m, "max_iter", 1, 1 << 31)).transpose()?;
         if let Some(init) = initial {
             opts.initial = Some(initial_block(init, n)?);
@@ -509,6 +509,13 @@ pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py,
         return Err(pyo3::exceptions::PyValueError::new_err(format!("`a` must be a non-empty square matrix; got shape ({r}, {c})")));
     }
     crate::error::check_finite("a", &data).py(py)?;
+    if let Some(i) = data.iter().position(|v| v.abs() > crate::hamiltonian::MAX_ABS_POTENTIAL) {
+        return Err(pyo3::exceptions::PyValueError::new_err(format!(
+            "`a` entries must satisfy |a| <= {:e} (larger values overflow the eigensolver); got {:e} at flat index {i}",
+            crate::hamiltonian::MAX_ABS_POTENTIAL,
+            data[i]
+        )));
+    }
     let (vals, vecs) = py
         .detach(move || {
             let m = faer::Mat::from_fn(r, r, |i, j| data[i * r + j]);
@@ -537,11 +544,15 @@ impl PyBatch {
         self.stack_rows(py, |s| &s.residuals)
     }
     /// The Spectrum of item i (negative indices count from the end).
-    fn __getitem__(&self, i: isize) -> PyResult<PySpectrum> {
-        let m = self.items.len() as isize;
-        let j = if i < 0 { i + m } else { i };
+    fn __getitem__(&self, i: &Bound<'_, PyAny>) -> PyResult<PySpectrum> {
+        let m = self.items.len() as i128;
+        let idx: i128 = i
+            .call_method0("__index__")
+            .and_then(|v| v.extract::<i128>())
+            .map_err(|_| PyTypeError::new_err("batch index must be an integer"))?;
+        let j = if idx < 0 { idx + m } else { idx };
         if !(0..m).contains(&j) {
-            return Err(pyo3::exceptions::PyIndexError::new_err(format!("batch index must be in [{}, {}]; got {i}", -m, m - 1)));
+            return Err(pyo3::exceptions::PyIndexError::new_err(format!("batch index must be in [{}, {}]; got {idx}", -m, m - 1)));
         }
         Ok(PySpectrum { inner: self.items[j as usize].clone() })
     }
@@ -550,7 +561,7 @@ impl PyBatch {
     }
     /// ψ_n(x) of item `index`, shape (count, len(x)).
     #[pyo3(signature = (index, x=None))]
-    fn wavefunctions<'py>(&self, py: Python<'py>, index: isize, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+    fn wavefunctions<'py>(&self, py: Python<'py>, index: &Bound<'py, PyAny>, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         self.__getitem__(index)?.wavefunctions(py, x)
     }
     fn __repr__(&self) -> String {

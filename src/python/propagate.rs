@@ -202,14 +202,14 @@ impl PySplitStep {
 
     /// Lowest `count` states by imaginary-time propagation with Gram-Schmidt
     /// (requires imaginary_time=True). Returns (energies, states (count, N)).
-    #[pyo3(signature = (count, tol=1e-9, max_steps=None, seed=0x5eed))]
+    #[pyo3(signature = (count, tol=1e-9, max_steps=None, seed=None))]
     fn ground_states<'py>(
         &self,
         py: Python<'py>,
         count: &Bound<'py, PyAny>,
         tol: f64,
         max_steps: Option<&Bound<'py, PyAny>>,
-        seed: u64,
+        seed: Option<&Bound<'py, PyAny>>,
     ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray2<Complex64>>)> {
         let n = self.core.n();
         let count = to_usize(count, "count", 1, n)?;
@@ -218,6 +218,7 @@ impl PySplitStep {
             Some(m) => to_usize(m, "max_steps", 1, usize::MAX >> 8)?,
         };
         crate::error::check_positive("tol", tol).py(py)?;
+        let seed = super::arrays::seed_arg(seed)?;
         let core = self.core.clone();
         let gs = py.detach(move || core.ground_states(count, tol, max_steps, seed)).py(py)?;
         let states = ndarray::Array2::from_shape_vec((count, n), gs.states)
@@ -228,6 +229,7 @@ impl PySplitStep {
     /// Times (relative to t0 = 0) at which a callable drive f(t) is evaluated for a run of `steps`.
     fn drive_sample_times<'py>(&self, py: Python<'py>, steps: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
+        self.check_drive_memory(py, steps)?;
         Ok(PyArray1::from_vec(py, self.core.drive_sample_times(steps, DriveSampling::Substeps)))
     }
 
@@ -290,12 +292,20 @@ impl PySplitStep {
 }
 
 impl PySplitStep {
+    /// Refuse up front drive sample arrays (times and values) that would not fit in memory.
+    fn check_drive_memory(&self, py: Python<'_>, steps: usize) -> PyResult<()> {
+        let per_step = self.core.samples_per_step(DriveSampling::Substeps) as u64;
+        let bytes = (steps as u64).saturating_mul(per_step).saturating_mul(16);
+        crate::error::check_memory("steps", bytes, "the drive samples for this many steps do not fit; run in shorter segments").py(py)
+    }
+
     /// The core propagator with the drive samples for a run of `steps` steps.
     fn prepared(&self, py: Python<'_>, steps: usize) -> PyResult<Arc<SplitStep>> {
         let (f, v1) = match (&self.drive, &self.drive_potential) {
             (Some(f), Some(v1)) => (f.bind(py), v1),
             _ => return Ok(self.core.clone()),
         };
+        self.check_drive_memory(py, steps)?;
         let (values, sampling) = if f.is_callable() {
             let times = self.core.drive_sample_times(steps, DriveSampling::Substeps);
             let t = PyArray1::from_slice(py, &times);
