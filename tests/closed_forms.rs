@@ -17,8 +17,8 @@ fn harmonic_oscillator_both_bases() {
     // E_n = (n + ½)ħω (any QM textbook, e.g. Griffiths 2005 eq. 2.61), m = 2, ω = 1.5.
     let (m, w) = (2.0, 1.5);
     let v = move |x: f64| 0.5 * m * w * w * x * x;
-    let hb = BasisRef::Hermite(Arc::new(HermiteBasis::new(60, 0.4, 0.9, None).unwrap()));
-    let fg = BasisRef::Fourier(Arc::new(FourierGrid::new(-10.0, 10.0, 160).unwrap()));
+    let hb = BasisRef::Hermite(Arc::new(HermiteBasis::new(90, 0.4, 0.7, None).unwrap()));
+    let fg = BasisRef::Fourier(Arc::new(FourierGrid::new(-10.0, 10.0, 200).unwrap()));
     for e in [spectrum(hb, v, m, 10), spectrum(fg, v, m, 10)] {
         for (n, en) in e.iter().enumerate() {
             assert!((en - (n as f64 + 0.5) * w).abs() < 1e-10, "n={n}: {en}");
