@@ -35,11 +35,11 @@ def _basis_from_header(h: dict):
 
 
 def save(result, path: Union[str, os.PathLike]) -> None:
-    """Save a Spectrum (or any result with a ``_save_arrays()`` method) to ``path`` (.npz).
+    """Save a Spectrum or a Run to ``path`` (.npz): plain arrays plus a JSON header.
 
     Parameters
     ----------
-    result : Spectrum
+    result : Spectrum or Run
         The result to save.
     path : str or path-like
         Destination; numpy appends ``.npz`` if missing.
@@ -60,9 +60,13 @@ def save(result, path: Union[str, os.PathLike]) -> None:
             arrays["mass"] = mass
         else:
             header["mass"] = float(mass)
-    elif hasattr(result, "_save_arrays"):
-        header, arrays = result._save_arrays()
-        header = dict(header, format=_FORMAT, version=_VERSION)
+    elif isinstance(result, _core.Run):
+        header = {"format": _FORMAT, "version": _VERSION, "type": "Run", "units": result.units,
+                  "basis": _basis_header(result.grid), "absorbed_norm": result.absorbed_norm,
+                  "steps_done": result.steps_done, "cancelled": False}
+        arrays = dict(times=result.times, states=result.states, norm=result.norm, mean_x=result.mean_x,
+                      mean_p=result.mean_p, energy=result.energy, autocorrelation=result.autocorrelation,
+                      record_steps=np.asarray(result.record_steps, dtype=np.int64), x=result.x)
     else:
         raise TypeError(f"`result` must be a specwell result (Spectrum, Run, ...); got {type(result).__name__}")
     np.savez(path, header=np.array(json.dumps(header)), **arrays)
@@ -95,4 +99,12 @@ def load(path: Union[str, os.PathLike]):
         return loaders(header, {k: f[k] for k in f.files if k != "header"})
 
 
-_LOADERS: dict = {}
+def _load_run(header: dict, f: dict):
+    grid = _basis_from_header(header["basis"])
+    return _core._run_from_parts(grid, header["units"], [int(k) for k in f["record_steps"]], f["times"],
+                                 f["states"].ravel(), f["norm"], f["mean_x"], f["mean_p"], f["energy"],
+                                 f["autocorrelation"], header["absorbed_norm"], header["steps_done"],
+                                 header["cancelled"])
+
+
+_LOADERS: dict = {"Run": _load_run}
