@@ -155,7 +155,9 @@ def test_gil_released_during_heavy_work(name):
     grid = sw.FourierGrid(-30.0, 30.0, 900)
     V = 0.5 * grid.x**2
     if name == "dense":
-        H = sw.Hamiltonian(grid, V)
+        # Large enough (≈0.5 s on 2 idle cores) that the workload check below cannot flake.
+        dense_grid = sw.FourierGrid(-30.0, 30.0, 1500)
+        H = sw.Hamiltonian(dense_grid, 0.5 * dense_grid.x**2)
         fn = lambda: H.solve(5, method="dense")  # noqa: E731
     elif name == "iterative":
         big = sw.FourierGrid(-60.0, 60.0, 2**13)
