@@ -70,6 +70,8 @@ def main(argv=None) -> int:
     print(f"{'level':>5} {'Hermite':>18} {'Fourier':>18} {'|diff|':>9}")
     for n, (a, b) in enumerate(zip(he, fe)):
         print(f"{n:>5} {a:18.12f} {b:18.12f} {abs(a - b):9.1e}")
+    print()
+    print(__doc__.split("\n\n")[3].replace("\n", " "))
 
     if not args.no_plot:
         try:
