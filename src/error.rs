@@ -123,6 +123,16 @@ pub fn parse_choice<T: Copy>(argument: &str, got: &str, table: &[(&str, T)]) -> 
     })
 }
 
+/// The option string of `value` in `table` (every enum value has exactly one entry).
+pub fn choice_name<T: Copy + PartialEq>(table: &[(&'static str, T)], value: T) -> &'static str {
+    table.iter().find(|(_, v)| *v == value).map_or("", |(name, _)| name)
+}
+
+/// The option strings of a table, in order (for listings such as `specwell.UNITS`).
+pub fn choice_names<T>(table: &[(&'static str, T)]) -> Vec<&'static str> {
+    table.iter().map(|(name, _)| *name).collect()
+}
+
 /// Check that every entry of `values` is finite.
 pub fn check_finite(argument: &str, values: &[f64]) -> std::result::Result<(), InputError> {
     match values.iter().position(|v| !v.is_finite()) {

@@ -74,10 +74,11 @@ pub enum LineShape {
 }
 
 impl LineShape {
-    pub const CHOICES: [&'static str; 2] = ["lorentzian", "gaussian"];
+    /// Option strings and their line shapes.
+    pub const TABLE: [(&'static str, LineShape); 2] = [("lorentzian", LineShape::Lorentzian), ("gaussian", LineShape::Gaussian)];
 
     pub fn parse(s: &str) -> std::result::Result<Self, crate::error::InputError> {
-        crate::error::parse_choice("shape", s, &[("lorentzian", LineShape::Lorentzian), ("gaussian", LineShape::Gaussian)])
+        crate::error::parse_choice("shape", s, &Self::TABLE)
     }
 
     fn value(self, de: f64, width: f64) -> f64 {

@@ -43,25 +43,19 @@ pub enum Units {
 }
 
 impl Units {
-    /// The accepted option strings, in the order listed in error messages.
-    pub const CHOICES: [&'static str; 3] = ["natural", "atomic", "semiconductor"];
+    /// Option strings and their systems, in the order listed in error messages: the one
+    /// place the names live (parsing, `name()` and the Python `UNITS` list read it).
+    pub const TABLE: [(&'static str, Units); 3] =
+        [("natural", Units::Natural), ("atomic", Units::Atomic), ("semiconductor", Units::Semiconductor)];
 
     /// Parse an option string (exact, lower case).
     pub fn parse(s: &str) -> Result<Self, InputError> {
-        crate::error::parse_choice(
-            "units",
-            s,
-            &[("natural", Units::Natural), ("atomic", Units::Atomic), ("semiconductor", Units::Semiconductor)],
-        )
+        crate::error::parse_choice("units", s, &Self::TABLE)
     }
 
     /// The option string of this system.
     pub fn name(self) -> &'static str {
-        match self {
-            Units::Natural => "natural",
-            Units::Atomic => "atomic",
-            Units::Semiconductor => "semiconductor",
-        }
+        crate::error::choice_name(&Self::TABLE, self)
     }
 
     /// ħ²/(2 m_e) in energy·length² of this system.

@@ -23,18 +23,16 @@ pub enum Method {
 }
 
 impl Method {
-    pub const CHOICES: [&'static str; 3] = ["auto", "dense", "iterative"];
+    /// Option strings and their methods (the one place the names live).
+    pub const TABLE: [(&'static str, Method); 3] =
+        [("auto", Method::Auto), ("dense", Method::Dense), ("iterative", Method::Iterative)];
 
     pub fn parse(s: &str) -> std::result::Result<Self, InputError> {
-        crate::error::parse_choice("method", s, &[("auto", Method::Auto), ("dense", Method::Dense), ("iterative", Method::Iterative)])
+        crate::error::parse_choice("method", s, &Self::TABLE)
     }
 
     pub fn name(self) -> &'static str {
-        match self {
-            Method::Auto => "auto",
-            Method::Dense => "dense",
-            Method::Iterative => "iterative",
-        }
+        crate::error::choice_name(&Self::TABLE, self)
     }
 
     /// The concrete method `Auto` picks for `h` and `count`.
@@ -113,17 +111,18 @@ pub fn check_tol(tol: f64) -> std::result::Result<(), InputError> {
     Ok(())
 }
 
+/// The columns of `m` laid end to end (the column-major block layout of the
+/// matrix-free operators and of warm starts).
+pub fn column_major(m: &Mat<f64>) -> Vec<f64> {
+    (0..m.ncols()).flat_map(|j| (0..m.nrows()).map(move |i| m[(i, j)])).collect()
+}
+
 /// Residual norms ‖H v_j − E_j B v_j‖ of the columns of `vectors` (B = I except for
 /// heterostructures).
 pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f64> {
     let n = vectors.nrows();
     let k = vectors.ncols();
-    let mut x = vec![0.0; n * k];
-    for j in 0..k {
-        for i in 0..n {
-            x[j * n + i] = vectors[(i, j)];
-        }
-    }
+    let x = column_major(vectors);
     let mut y = vec![0.0; n * k];
     h.apply_block(&x, &mut y, k);
     let mut bx = vec![0.0; n * k];
@@ -215,13 +214,12 @@ pub fn solve_batch(
                         // the two previous items when available (signs are deterministic).
                         let k = out.len();
                         if k >= 1 {
-                            let m1 = &out[k - 1].vectors;
-                            let (n, c) = (m1.nrows(), m1.ncols());
+                            let last = column_major(&out[k - 1].vectors);
                             oi.initial = Some(if k >= 2 {
-                                let m0 = &out[k - 2].vectors;
-                                (0..c).flat_map(|j| (0..n).map(move |i| 2.0 * m1[(i, j)] - m0[(i, j)])).collect()
+                                let before = column_major(&out[k - 2].vectors);
+                                last.iter().zip(&before).map(|(a, b)| 2.0 * a - b).collect()
                             } else {
-                                (0..c).flat_map(|j| (0..n).map(move |i| m1[(i, j)])).collect()
+                                last
                             });
                         }
                         out.push(solve_with_par(&build(v)?, &oi, faer::Par::Seq)?);

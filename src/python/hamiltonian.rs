@@ -191,7 +191,7 @@ impl PyHamiltonian {
         let py = slf.py();
         let h = &slf.get().inner;
         if let BasisRef::Layered(l) = h.basis() {
-            let stack = Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?.into_any();
+            let stack = stack_to_py(py, l)?.into_any();
             return Ok((slf.get_type(), (basis_to_py(py, h.basis())?, stack, py.None(), h.units().name())));
         }
         Ok((
@@ -199,6 +199,11 @@ impl PyHamiltonian {
             (basis_to_py(py, h.basis())?, PyArray1::from_slice(py, h.potential()).into_any().unbind(), mass_to_py(py, h.mass()), h.units().name()),
         ))
     }
+}
+
+/// The Heterostructure behind a layered basis, as a Python object.
+fn stack_to_py(py: Python<'_>, l: &crate::basis::LayeredBasis) -> PyResult<Py<PyHeterostructure>> {
+    Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })
 }
 
 fn mass_text(m: &Mass) -> String {
@@ -307,7 +312,7 @@ fn initial_block(obj: &Bound<'_, PyAny>, n: usize) -> PyResult<Vec<f64>> {
                 v.nrows()
             )));
         }
-        return Ok((0..v.ncols()).flat_map(|j| (0..n).map(move |i| v[(i, j)])).collect());
+        return Ok(crate::eigen::column_major(v));
     }
     let (r, c, data) = super::arrays::mat_f64(obj, "initial")?;
     if c != n || r == 0 {
@@ -354,7 +359,7 @@ impl PySpectrum {
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
         match &self.inner.basis {
-            BasisRef::Layered(l) => Ok(Some(Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?)),
+            BasisRef::Layered(l) => Ok(Some(stack_to_py(py, l)?)),
             _ => Ok(None),
         }
     }
@@ -456,7 +461,7 @@ impl PySpectrum {
         let rebuild = py.import("specwell._core")?.getattr("_spectrum_from_parts")?;
         let basis = match &s.basis {
             BasisRef::Layered(l) => {
-                let stack = Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })?.into_any();
+                let stack = stack_to_py(py, l)?.into_any();
                 PyTuple::new(py, [basis_to_py(py, &s.basis)?, stack])?.into_any().unbind()
             }
             _ => basis_to_py(py, &s.basis)?,
