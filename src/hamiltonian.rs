@@ -33,6 +33,10 @@ pub enum Kinetic {
     Profile(Vec<f64>),
 }
 
+/// Antisymmetric potential parts up to this many ε‖H‖ are dropped by
+/// [`Hamiltonian::parity_blocks`] (below the backward error of a dense solve).
+pub const PARITY_TOL: f64 = 4.0;
+
 /// Largest |V| accepted: beyond this, squares in residuals and eigensolver
 /// scaling overflow f64.
 pub const MAX_ABS_POTENTIAL: f64 = 1e100;
@@ -200,6 +204,33 @@ impl Hamiltonian {
         }
     }
 
+    /// Even and odd parity blocks of [`Hamiltonian::matrix`] (functions n = 0, 2, …
+    /// and n = 1, 3, …) when `H` commutes with the reflection about the centre of
+    /// a Hermite basis (uniform mass, potential symmetric at the nodes to within
+    /// [`PARITY_TOL`]·ε‖H‖; see
+    /// [`HermiteBasis::parity_potential_blocks`]); `None` otherwise.
+    pub fn parity_blocks(&self) -> Option<[Mat<f64>; 2]> {
+        let (BasisRef::Hermite(b), Kinetic::Uniform(c)) = (&self.basis, &self.kinetic) else {
+            return None;
+        };
+        let (even, odd) = b.parity_potential_blocks(&self.potential, PARITY_TOL * f64::EPSILON * self.norm_estimate())?;
+        // −d²/dx² = p̂²/L² couples n to n ± 2 only: tridiagonal in each block.
+        let s = c / (b.length() * b.length());
+        let add_kinetic = |mut v: Mat<f64>, parity: usize| {
+            for r in 0..v.nrows() {
+                let n = 2 * r + parity;
+                v[(r, r)] += s * (n as f64 + 0.5);
+                if r + 1 < v.nrows() {
+                    let off = -0.5 * s * (((n + 1) * (n + 2)) as f64).sqrt();
+                    v[(r + 1, r)] += off;
+                    v[(r, r + 1)] += off;
+                }
+            }
+            v
+        };
+        Some([add_kinetic(even, 0), add_kinetic(odd, 1)])
+    }
+
     /// The overlap (mass) matrix B of a generalized problem; `None` when B = I.
     pub fn overlap(&self) -> Option<Mat<f64>> {
         match &self.basis {
@@ -340,38 +371,29 @@ fn hermite_apply(b: &HermiteBasis, kinetic: &Kinetic, v: &[f64], x: &[f64], y: &
         Kinetic::Profile(_) => unreachable_profile(),
     };
     let phi = b.phi();
-    let m = phi.ncols();
-    let mut q = vec![0.0; m];
+    let xs = faer::MatRef::from_column_major_slice(&x[..n * ncols], n, ncols);
+    // q = V ⊙ (Φᵀ x), then y = c·p̂² x + Φ q (two matrix products over the block).
+    let mut q = phi.transpose() * xs;
     for j in 0..ncols {
-        let xs = &x[j * n..(j + 1) * n];
-        let ys = &mut y[j * n..(j + 1) * n];
-        // q = V ⊙ (Φᵀ x)
-        for (k, qk) in q.iter_mut().enumerate() {
-            let col = phi.col(k);
-            let mut s = 0.0;
-            for i in 0..n {
-                s += col[i] * xs[i];
-            }
-            *qk = s * v[k];
-        }
-        for i in 0..n {
-            // p̂² row i: diagonal i + ½, entries at i ± 2.
-            let mut t = (i as f64 + 0.5) * xs[i];
-            if i >= 2 {
-                t -= 0.5 * (((i - 1) * i) as f64).sqrt() * xs[i - 2];
-            }
-            if i + 2 < n {
-                t -= 0.5 * (((i + 1) * (i + 2)) as f64).sqrt() * xs[i + 2];
-            }
-            ys[i] = c * t;
-        }
-        for (k, &qk) in q.iter().enumerate() {
-            let col = phi.col(k);
-            for i in 0..n {
-                ys[i] += col[i] * qk;
-            }
+        for (k, &vk) in v.iter().enumerate() {
+            q[(k, j)] *= vk;
         }
     }
+    let mut ys = faer::MatMut::from_column_major_slice_mut(&mut y[..n * ncols], n, ncols);
+    for j in 0..ncols {
+        for i in 0..n {
+            // p̂² row i: diagonal i + ½, entries at i ± 2.
+            let mut t = (i as f64 + 0.5) * xs[(i, j)];
+            if i >= 2 {
+                t -= 0.5 * (((i - 1) * i) as f64).sqrt() * xs[(i - 2, j)];
+            }
+            if i + 2 < n {
+                t -= 0.5 * (((i + 1) * (i + 2)) as f64).sqrt() * xs[(i + 2, j)];
+            }
+            ys[(i, j)] = c * t;
+        }
+    }
+    faer::linalg::matmul::matmul(ys.as_mut(), faer::Accum::Add, phi, q.as_ref(), 1.0, faer::Par::Seq);
 }
 
 #[cfg(test)]
@@ -424,6 +446,34 @@ mod tests {
             for j in 0..24 {
                 assert!((ma[(i, j)] - mb[(i, j)]).abs() < 1e-10);
             }
+        }
+    }
+
+    #[test]
+    fn parity_blocks_are_the_even_and_odd_submatrices() {
+        // A potential symmetric about the basis centre (ξ ↦ −ξ); the blocks must be
+        // the even/odd rows and columns of the full matrix, the couplings zero.
+        for (size, quad) in [(21, 43), (20, 40)] {
+            let b = Arc::new(HermiteBasis::new(size, 0.3, 1.4, Some(quad)).unwrap());
+            let v: Vec<f64> = b.nodes().iter().map(|xi| xi.powi(4) - 3.0 * xi * xi).collect();
+            let h = Hamiltonian::new(BasisRef::Hermite(b.clone()), v, Mass::Uniform(0.7), Units::Natural).unwrap();
+            let full = h.matrix();
+            let [even, odd] = h.parity_blocks().expect("symmetric potential");
+            let scale = (0..size).map(|i| full[(i, i)].abs()).fold(0.0, f64::max);
+            for i in 0..size {
+                for j in 0..size {
+                    let got = match (i % 2, j % 2) {
+                        (0, 0) => even[(i / 2, j / 2)],
+                        (1, 1) => odd[(i / 2, j / 2)],
+                        _ => 0.0,
+                    };
+                    assert!((got - full[(i, j)]).abs() < 1e-12 * scale, "({i},{j}) {got} vs {}", full[(i, j)]);
+                }
+            }
+            // An asymmetric potential has no parity blocks.
+            let w: Vec<f64> = b.nodes().iter().map(|xi| xi.powi(4) + 1e-6 * xi).collect();
+            let g = Hamiltonian::new(BasisRef::Hermite(b), w, Mass::Uniform(0.7), Units::Natural).unwrap();
+            assert!(g.parity_blocks().is_none());
         }
     }
 

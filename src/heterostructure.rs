@@ -50,7 +50,7 @@
 //! Units: lengths nm, energies meV, masses m_e ([`Units::Semiconductor`] only).
 
 use crate::basis::FourierGrid;
-use crate::eigen::dense::eigh;
+use crate::eigen::dense::lowest_of_matrix;
 use crate::error::{check_finite, check_memory, InputError, NumericalError, Result};
 use crate::units::Units;
 use faer::linalg::triangular_solve::{solve_lower_triangular_in_place, solve_upper_triangular_in_place};
@@ -799,13 +799,11 @@ impl LayeredProblem {
                 c[(l, j)] = v;
             }
         }
-        let (vals, u) = eigh(c.as_ref(), par)?;
+        let (vals, mut v) = lowest_of_matrix(c.as_ref(), count, par)?;
         drop(c);
-        let mut v = u.subcols(0, count).to_owned();
-        drop(u);
         solve_upper_triangular_in_place(lfac.transpose(), v.as_mut(), par);
         fix_signs(&mut v);
-        Ok((vals[..count].to_vec(), v))
+        Ok((vals, v))
     }
 
     fn check_coefs(&self, coefs: MatRef<'_, f64>) -> std::result::Result<(), InputError> {
@@ -1107,7 +1105,7 @@ mod tests {
                 Units::Semiconductor,
             )
             .unwrap();
-            let (ez, _) = eigh(h.matrix().as_ref(), Par::Seq).unwrap();
+            let (ez, _) = crate::eigen::dense::eigh(h.matrix().as_ref(), Par::Seq).unwrap();
             let ord = errs.last().map(|&prev: &f64| (prev / err).ln() / ((n - 1) as f64 / ((n - 1) / 2) as f64).ln());
             println!(
                 "{n:6} | {err:29.3e} | {:5} | {:.3e}",
@@ -1263,7 +1261,7 @@ mod tests {
             let bsym = (0..n).flat_map(|i| (0..n).map(move |j| (i, j))).map(|(i, j)| (bc[i * n + j] - bc[j * n + i]).abs()).fold(0.0, f64::max);
             assert!(asym <= 1e-10 * na && bsym <= 1e-12, "asym {asym:e} bsym {bsym:e}");
             // B positive definite, spectrum inside [1/max m, 1/min m] (Galerkin projection of 1/m).
-            let (lb, _) = eigh(b.as_ref(), Par::Seq).unwrap();
+            let (lb, _) = crate::eigen::dense::eigh(b.as_ref(), Par::Seq).unwrap();
             assert!(lb[0] >= 1.0 / 0.1 - 1e-9 && lb[n - 1] <= 1.0 / 0.06 + 1e-9, "{} {}", lb[0], lb[n - 1]);
             // Eigenvectors B-orthonormal.
             let (_, v) = p.solve_dense(4, Par::Seq).unwrap();

@@ -268,6 +268,47 @@ def test_hermite_nodes_match_numpy_hermgauss(m):
     np.testing.assert_allclose(basis.x, 0.4 + 1.7 * basis.nodes, rtol=0, atol=1e-12)
 
 
+def numpy_hermite_hamiltonian(size, quad, center, length, potential):
+    """H = -½ d²/dx² + V in Hermite functions, built independently with numpy's
+    hermgauss and the normalised recurrence (Abramowitz & Stegun 22.7.13 in
+    orthonormal form) and the ladder-operator p̂² (Sakurai 1994, §2.3)."""
+    xi, w = np.polynomial.hermite.hermgauss(quad)
+    psi = np.empty((size, quad))
+    psi[0] = np.pi**-0.25 * np.exp(-0.5 * xi**2)
+    psi[1] = np.sqrt(2.0) * xi * psi[0]
+    for n in range(1, size - 1):
+        psi[n + 1] = np.sqrt(2.0 / (n + 1)) * xi * psi[n] - np.sqrt(n / (n + 1)) * psi[n - 1]
+    phi = psi * np.sqrt(w * np.exp(xi**2))
+    n = np.arange(size)
+    off = -0.5 * np.sqrt((n[:-2] + 1) * (n[:-2] + 2))
+    p2 = np.diag(n + 0.5) + np.diag(off, 2) + np.diag(off, -2)
+    return 0.5 * p2 / length**2 + (phi * potential(center + length * xi)) @ phi.T
+
+
+@pytest.mark.parametrize(
+    "potential, count",
+    [
+        (lambda x: (x - 0.4) ** 4 - 3.0 * (x - 0.4) ** 2, 12),  # symmetric about the centre: parity blocks
+        (lambda x: (x - 0.4) ** 4 - 3.0 * (x - 0.4) ** 2 + 0.3 * x, 12),  # asymmetric: subset solver
+        (lambda x: (x - 0.4) ** 4 - 3.0 * (x - 0.4) ** 2, 50),  # > ¼ of each parity block: all pairs
+        (lambda x: (x - 0.4) ** 4 + 0.3 * x, 50),  # > ¼ of the spectrum: all pairs
+    ],
+)
+def test_dense_routes_match_scipy_eigh_on_numpy_built_matrix(potential, count):
+    # Every route of the dense path (parity blocks, bisection + inverse iteration,
+    # full divide and conquer) against scipy.linalg.eigh on an independent build.
+    size, quad, center, length = 120, 150, 0.4, 0.9
+    h = sw.Hamiltonian(sw.HermiteBasis(size, center=center, length=length, quadrature=quad), potential)
+    s = h.solve(count, method="dense")
+    ref_e, ref_v = eigh(numpy_hermite_hamiltonian(size, quad, center, length, potential), subset_by_index=[0, count - 1])
+    scale = max(1.0, np.abs(ref_e).max())
+    assert np.abs(s.energies - ref_e).max() <= 1e-11 * scale
+    overlap = np.abs(s.vectors @ ref_v)  # (count, count): ±identity for non-degenerate levels
+    np.testing.assert_allclose(np.diag(overlap), 1.0, rtol=0, atol=1e-9)
+    np.testing.assert_allclose(s.vectors @ s.vectors.T, np.eye(count), rtol=0, atol=1e-12)
+    assert s.residuals.max() <= 1e-10 * scale
+
+
 def potential_matrix(basis, values):
     # The potential part alone: H(V) - H(0) (same kinetic matrix in both).
     return sw.Hamiltonian(basis, values).matrix() - sw.Hamiltonian(basis, np.zeros(basis.quadrature)).matrix()

@@ -12,7 +12,7 @@
 //!   V is a polynomial of degree ≤ 2(M − N) + 1. Assembled as Φ·diag(V)·Φᵀ with
 //!   Φ_nk = ψ_n(ξ_k) sqrt(λ_k) (a matrix product, O(N² M)).
 
-use super::hermite_math::{gauss_hermite, hermite_functions};
+use super::hermite_math::{gauss_hermite, hermite_function_table, hermite_functions};
 use super::Basis;
 use crate::error::{check_finite, InputError};
 use faer::{Mat, MatRef};
@@ -20,6 +20,9 @@ use rayon::prelude::*;
 
 /// Largest basis accepted (the dense N×M table Φ is kept in memory).
 pub const MAX_SIZE: usize = 20_000;
+
+/// Entries of Φ above which its columns are filled in parallel.
+const PAR_MIN_TABLE: usize = 1 << 14;
 
 /// Gauss-Hermite function basis with its quadrature table.
 #[derive(Debug, Clone)]
@@ -60,19 +63,24 @@ impl HermiteBasis {
         let gh = gauss_hermite(m);
         let nodes = gh.nodes;
         let x: Vec<f64> = nodes.iter().map(|&xi| center + length * xi).collect();
-        // Column k of Φ: ψ_0..ψ_{N−1} at ξ_k times sqrt(λ_k); columns are independent.
-        let cols: Vec<Vec<f64>> = nodes
-            .par_iter()
-            .zip(gh.scaled_weights.par_iter())
-            .map(|(&xi, &lam)| {
-                let mut col = vec![0.0; size];
-                hermite_functions(size, xi, &mut col);
-                let s = lam.sqrt();
+        // Column k of Φ: ψ_0..ψ_{N−1} at ξ_k times sqrt(λ_k); columns are independent
+        // (in parallel only when the table is large enough to pay for the threads).
+        let mut table = vec![0.0; size * m];
+        let block = 64;
+        let fill = |(c, cols): (usize, &mut [f64])| {
+            let ks = c * block..(c * block + block).min(m);
+            hermite_function_table(size, &nodes[ks.clone()], cols);
+            for (k, col) in ks.zip(cols.chunks_mut(size)) {
+                let s = gh.scaled_weights[k].sqrt();
                 col.iter_mut().for_each(|v| *v *= s);
-                col
-            })
-            .collect();
-        let phi = Mat::from_fn(size, m, |n, k| cols[k][n]);
+            }
+        };
+        if size * m >= PAR_MIN_TABLE {
+            table.par_chunks_mut(size * block).enumerate().for_each(fill);
+        } else {
+            table.chunks_mut(size * block).enumerate().for_each(fill);
+        }
+        let phi = faer::MatRef::from_column_major_slice(&table, size, m).to_owned();
         Ok(HermiteBasis { size, center, length, nodes, x, phi })
     }
 
@@ -114,6 +122,48 @@ impl HermiteBasis {
             }
         }
         out
+    }
+
+    /// Parity blocks of Φ·diag(V)·Φᵀ when V is mirror-symmetric about the
+    /// centre: `(V_even, V_odd)` over the functions n = 0, 2, 4, … and
+    /// n = 1, 3, 5, …, or `None` when V is not symmetric at the nodes.
+    ///
+    /// The nodes are mirror pairs ξ_k = −ξ_{M−1−k} and ψ_n(−ξ) = (−1)ⁿ ψ_n(ξ), so
+    /// for a symmetric V the even-odd couplings vanish and each block is a sum
+    /// over half the nodes (4× less work than the full product, and two half-size
+    /// eigenproblems instead of one). The blocks use the symmetric part of V;
+    /// "symmetric" means the antisymmetric part δ_k = (V_k − V_{M−1−k})/2 has
+    /// max|δ_k| ≤ `tol`. Since ‖Φ‖₂ ≤ 1, the matrix dropped has 2-norm ≤ `tol`;
+    /// callers pass a few ε‖H‖, the backward error any dense eigensolver makes
+    /// anyway (rounding in sampling V, e.g. at center ± L·ξ, is then accepted).
+    pub fn parity_potential_blocks(&self, v: &[f64], tol: f64) -> Option<(Mat<f64>, Mat<f64>)> {
+        let m = self.nodes.len();
+        let half = m / 2;
+        for k in 0..half {
+            let (a, b) = (v[k], v[m - 1 - k]);
+            if self.nodes[k] != -self.nodes[m - 1 - k] || !(0.5 * (a - b).abs() <= tol) {
+                return None;
+            }
+        }
+        // Folded weights: node pairs count twice (the symmetric part of V), the
+        // middle node (odd M, ξ = 0) once.
+        let cols = m - half;
+        let w = |k: usize| if k < half { v[k] + v[m - 1 - k] } else { v[k] };
+        let block = |parity: usize| {
+            let rows = (self.size + 1 - parity) / 2;
+            let scaled = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)] * w(k));
+            let plain = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)]);
+            let mut out = &scaled * plain.transpose();
+            for i in 0..rows {
+                for j in 0..i {
+                    let a = 0.5 * (out[(i, j)] + out[(j, i)]);
+                    out[(i, j)] = a;
+                    out[(j, i)] = a;
+                }
+            }
+            out
+        };
+        Some((block(0), block(1)))
     }
 
     /// The matrix of the dimensionless p̂² = −d²/dξ² in the first N functions.

@@ -214,6 +214,46 @@ pub fn hermite_functions(n: usize, xi: f64, out: &mut [f64]) {
     drive(last, xi, |j, rec| out[j] = scale.apply(rec.curr, rec.exp2));
 }
 
+/// [`hermite_functions`] at many points: column `k` of the column-major
+/// `n × xis.len()` table `out` receives `ψ_0(ξ_k), …, ψ_{n−1}(ξ_k)`.
+///
+/// Same recurrence and values as [`hermite_functions`]; the coefficients are
+/// computed once for all points and four points advance together so that the
+/// latencies of their independent recurrences overlap.
+///
+/// # Panics
+/// If `out.len() < n · xis.len()`.
+pub fn hermite_function_table(n: usize, xis: &[f64], out: &mut [f64]) {
+    const L: usize = 4;
+    if n == 0 {
+        return;
+    }
+    let table = CoefficientTable::new(n - 1);
+    let out = &mut out[..n * xis.len()];
+    let mut groups = out.chunks_mut(n * L);
+    for (g, cols) in xis.chunks(L).zip(&mut groups) {
+        if g.len() < L {
+            for (k, col) in cols.chunks_mut(n).enumerate() {
+                hermite_functions(n, g[k], col);
+            }
+            continue;
+        }
+        let mut recs: [Recurrence; L] = std::array::from_fn(|l| Recurrence::new(g[l]));
+        let mut scales: [Pow2Applier; L] = std::array::from_fn(|_| Pow2Applier::new());
+        for j in 0..n {
+            for l in 0..L {
+                cols[l * n + j] = scales[l].apply(recs[l].curr, recs[l].exp2);
+            }
+            if j + 1 < n {
+                let (a, b) = (table.a[j], table.b[j]);
+                for rec in recs.iter_mut() {
+                    rec.step(a, b);
+                }
+            }
+        }
+    }
+}
+
 /// Like [`hermite_functions`], and also the derivatives `dout[j] = ψ_j'(ξ)` for `j < n`, using
 /// `ψ_j' = sqrt(2j) ψ_{j−1} − ξ ψ_j` (equivalently `sqrt(j/2) ψ_{j−1} − sqrt((j+1)/2) ψ_{j+1}`).
 ///

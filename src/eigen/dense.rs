@@ -103,8 +103,76 @@ pub fn lowest(h: &Hamiltonian, count: usize, par: Par) -> Result<(Vec<f64>, Mat<
     if let crate::basis::BasisRef::Layered(l) = h.basis() {
         return l.problem().solve_dense(count, par);
     }
+    if let Some(blocks) = h.parity_blocks() {
+        return lowest_by_parity(&blocks, count, par);
+    }
     let m = h.matrix();
-    let (vals, u) = eigh(m.as_ref(), par)?;
+    lowest_of_matrix(m.as_ref(), count, par)
+}
+
+/// Lowest `count` eigenpairs of a matrix given by its even and odd parity blocks
+/// (rows/columns 0, 2, 4, … and 1, 3, 5, … of the full matrix): the lowest
+/// `count` of each block, merged by energy, scattered back to full vectors.
+fn lowest_by_parity(blocks: &[Mat<f64>; 2], count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
+    let n = blocks[0].nrows() + blocks[1].nrows();
+    // (energy, parity, coefficients in the block)
+    let mut pairs: Vec<(f64, usize, Vec<f64>)> = Vec::with_capacity(count);
+    let wanted = |b: &Mat<f64>| count.min(b.nrows());
+    let subset = blocks.iter().all(|b| b.nrows() >= 2 && wanted(b) * super::subset::MAX_FRACTION <= b.nrows());
+    let reductions: Option<Vec<super::subset::Reduction>> =
+        if subset { blocks.iter().map(|b| super::subset::Reduction::new(b.as_ref(), par)).collect() } else { None };
+    let mut done = false;
+    if let Some(red) = reductions {
+        // Eigenvalues of both blocks first (cheap), then vectors only for the
+        // `count` lowest of the union.
+        let vals: Vec<Vec<f64>> = red.iter().zip(blocks).map(|(r, b)| r.lowest_values(wanted(b))).collect();
+        let mut merged: Vec<(f64, usize)> = vals.iter().enumerate().flat_map(|(p, v)| v.iter().map(move |&e| (e, p))).collect();
+        merged.sort_by(|a, b| a.0.total_cmp(&b.0));
+        merged.truncate(count);
+        let taken = [0, 1].map(|p| merged.iter().filter(|m| m.1 == p).count());
+        done = true;
+        for p in 0..2 {
+            if taken[p] == 0 {
+                continue;
+            }
+            match red[p].vectors(blocks[p].as_ref(), &vals[p][..taken[p]], par) {
+                Some(v) => pairs.extend((0..taken[p]).map(|j| (vals[p][j], p, v.col(j).iter().copied().collect()))),
+                None => done = false,
+            }
+        }
+    }
+    if !done {
+        pairs.clear();
+        for (parity, b) in blocks.iter().enumerate() {
+            let k = wanted(b);
+            if k == 0 {
+                continue;
+            }
+            let (vals, v) = lowest_of_matrix(b.as_ref(), k, par)?;
+            pairs.extend(vals.into_iter().enumerate().map(|(j, e)| (e, parity, v.col(j).iter().copied().collect())));
+        }
+    }
+    pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
+    pairs.truncate(count);
+    let mut vectors = Mat::<f64>::zeros(n, count);
+    for (j, (_, parity, v)) in pairs.iter().enumerate() {
+        for (r, x) in v.iter().enumerate() {
+            vectors[(2 * r + parity, j)] = *x;
+        }
+    }
+    Ok((pairs.into_iter().map(|p| p.0).collect(), vectors))
+}
+
+/// Lowest `count` eigenpairs of a symmetric matrix (lower triangle read): the
+/// verified subset solver ([`super::subset`]) when at most a quarter of the
+/// spectrum is wanted, all pairs by [`eigh`] otherwise or when its check fails.
+pub fn lowest_of_matrix(a: MatRef<'_, f64>, count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
+    if count * super::subset::MAX_FRACTION <= a.nrows() {
+        if let Some(pairs) = super::subset::lowest(a, count, par) {
+            return Ok(pairs);
+        }
+    }
+    let (vals, u) = eigh(a, par)?;
     let v = u.subcols(0, count).to_owned();
     Ok((vals[..count].to_vec(), v))
 }

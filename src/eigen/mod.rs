@@ -4,6 +4,7 @@
 pub mod dense;
 pub mod iterative;
 pub mod matrix_free;
+pub mod subset;
 
 use crate::basis::{fix_signs, BasisRef};
 use crate::error::{InputError, Result};
