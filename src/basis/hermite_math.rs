@@ -681,6 +681,21 @@ mod tests {
 
     const SQRT_PI: f64 = 1.772_453_850_905_516;
 
+    #[test]
+    fn table_equals_pointwise_functions() {
+        // Same recurrence, grouped differently: must agree bit for bit, including
+        // the ragged last group and far-tail points that need rescaling.
+        let xs: Vec<f64> = (0..11).map(|k| -45.0 + 9.1 * k as f64).collect();
+        let n = 700;
+        let mut table = vec![0.0; n * xs.len()];
+        hermite_function_table(n, &xs, &mut table);
+        let mut col = vec![0.0; n];
+        for (k, &x) in xs.iter().enumerate() {
+            hermite_functions(n, x, &mut col);
+            assert_eq!(&table[k * n..(k + 1) * n], &col[..], "x = {x}");
+        }
+    }
+
     fn rel(a: f64, b: f64) -> f64 {
         if a == b { 0.0 } else { (a - b).abs() / b.abs() }
     }
