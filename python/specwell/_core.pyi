@@ -181,7 +181,8 @@ class Hamiltonian:
         max_iter : int, optional
             Iteration limit of the iterative path.
         initial : Spectrum or array_like (k, N), optional
-            Warm start for the iterative path.
+            Warm start for the iterative path. Without it, a large grid starts from the
+            same problem solved on a coarser grid of the same box (then interpolated).
         seed : int, optional
             Seed of the iterative path's random start block, in [0, 2**63).
 

@@ -5,7 +5,7 @@ use super::iterative::{default_block_extra, lobpcg, IterativeOptions, Preconditi
 use super::{Method, SolveOptions};
 use crate::basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
 use crate::error::Result;
-use crate::hamiltonian::{Hamiltonian, Kinetic};
+use crate::hamiltonian::{Hamiltonian, Kinetic, Mass};
 use faer::Mat;
 use num_complex::Complex64;
 
@@ -172,6 +172,58 @@ fn hermite_diagonal(b: &HermiteBasis, h: &Hamiltonian) -> Vec<f64> {
         .collect()
 }
 
+/// Coarse grids of the cascade up to this size are solved densely.
+const COARSE_DENSE_MAX: usize = 256;
+/// Largest refinement factor between cascade levels.
+const COARSE_FACTOR: usize = 8;
+/// Iteration limit on coarse levels (a failed coarse level only costs its time:
+/// the fine solve then starts from random vectors).
+const COARSE_MAX_ITER: usize = 200;
+
+/// Warm start for `k` vectors on a Fourier grid from the same problem on a grid
+/// of the same box with n/r points (r ≤ [`COARSE_FACTOR`] a power of two dividing
+/// n; V and the mass subsampled): solved densely up to [`COARSE_DENSE_MAX`]
+/// points, by this cascade again above, then trigonometrically interpolated to
+/// the fine grid (cascadic multigrid for eigenproblems, cf. Bornemann &
+/// Deuflhard 1996). Smooth low states are resolved on the coarse grid already,
+/// so LOBPCG on the fine grid starts next to its answer; for rough potentials
+/// the start is merely no worse than random. `None` when the grid is too small
+/// to coarsen (coarse grid ≥ max(128, 8k) points) or the coarse solve fails.
+fn coarse_start(h: &Hamiltonian, g: &FourierGrid, k: usize, opts: &SolveOptions) -> Option<Vec<f64>> {
+    let n = g.len();
+    let min = (8 * k).max(128);
+    let mut r = 1;
+    while r < COARSE_FACTOR && n % (2 * r) == 0 && n / (2 * r) >= min {
+        r *= 2;
+    }
+    if r == 1 {
+        return None;
+    }
+    let nc = n / r;
+    let cg = std::sync::Arc::new(FourierGrid::new(g.start(), g.stop(), nc).ok()?);
+    let vc: Vec<f64> = h.potential().iter().step_by(r).copied().collect();
+    let mass = match h.mass() {
+        Mass::Uniform(m) => Mass::Uniform(*m),
+        Mass::Profile(ms) => Mass::Profile(ms.iter().step_by(r).copied().collect()),
+    };
+    let hc = Hamiltonian::new(BasisRef::Fourier(cg.clone()), vc, mass, h.units()).ok()?;
+    let coarse: Mat<f64> = if nc <= COARSE_DENSE_MAX {
+        super::dense::lowest_of_matrix(hc.matrix().as_ref(), k, faer::Par::Seq).ok()?.1
+    } else {
+        let mut oc = SolveOptions::new(k);
+        oc.tol = opts.tol.max(1e-8);
+        oc.max_iter = Some(COARSE_MAX_ITER);
+        oc.seed = opts.seed;
+        solve_hamiltonian(&hc, &oc).ok()?.1
+    };
+    let mut out = Vec::with_capacity(n * k);
+    for j in 0..coarse.ncols() {
+        let col: Vec<f64> = (0..nc).map(|i| coarse[(i, j)]).collect();
+        out.extend(cg.upsample(&col, g));
+    }
+    Some(out)
+}
+
 /// Lowest eigenpairs of `h` by LOBPCG: (energies, N×count vectors, iterations).
 pub fn solve_hamiltonian(h: &Hamiltonian, opts: &SolveOptions) -> Result<(Vec<f64>, Mat<f64>, usize)> {
     let n = h.size();
@@ -186,6 +238,9 @@ pub fn solve_hamiltonian(h: &Hamiltonian, opts: &SolveOptions) -> Result<(Vec<f6
     let op = HamiltonianOperator(h);
     let res = match h.basis() {
         BasisRef::Fourier(g) => {
+            if io.initial.is_none() {
+                io.initial = coarse_start(h, g, opts.count + io.block_extra, opts);
+            }
             let p = GridPreconditioner::new(g, h);
             lobpcg(&op, None, Some(&p), &io)?
         }
