@@ -104,6 +104,10 @@ pub struct IterativeResult {
     pub residuals: Vec<f64>,
     /// Number of LOBPCG steps taken.
     pub iterations: usize,
+    /// `dim * block_extra` column-major guard vectors (the Ritz vectors above the
+    /// wanted ones, not held to the tolerance): with `vectors`, a warm start for a
+    /// nearby problem whose guard columns are not random.
+    pub guards: Vec<f64>,
 }
 
 /// Upper bound of the bytes [`lobpcg`] allocates at once for a problem of
@@ -700,6 +704,7 @@ pub fn lobpcg(
             if done {
                 // hand back the X block of S without a copy (the buffer shrinks in place)
                 let energies = w.lambda[..count].to_vec();
+                let guards = w.s[count * dim..m * dim].to_vec();
                 drop(w.as_);
                 drop(w.bs);
                 let mut vectors = w.s;
@@ -716,6 +721,7 @@ pub fn lobpcg(
                     vectors,
                     residuals: res[..count].to_vec(),
                     iterations: iter,
+                    guards,
                 });
             }
             return Err(NumericalError::NotConverged {

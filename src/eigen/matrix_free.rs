@@ -224,8 +224,9 @@ fn coarse_start(h: &Hamiltonian, g: &FourierGrid, k: usize, opts: &SolveOptions)
     Some(out)
 }
 
-/// Lowest eigenpairs of `h` by LOBPCG: (energies, N×count vectors, iterations).
-pub fn solve_hamiltonian(h: &Hamiltonian, opts: &SolveOptions) -> Result<(Vec<f64>, Mat<f64>, usize)> {
+/// Lowest eigenpairs of `h` by LOBPCG: (energies, N×count vectors, iterations,
+/// column-major guard vectors; see [`super::iterative::IterativeResult::guards`]).
+pub fn solve_hamiltonian(h: &Hamiltonian, opts: &SolveOptions) -> Result<(Vec<f64>, Mat<f64>, usize, Vec<f64>)> {
     let n = h.size();
     let mut io = IterativeOptions::new(opts.count);
     // Residuals cannot drop below round-off, about ε‖H‖: a tighter `tol` is raised to
@@ -265,5 +266,5 @@ pub fn solve_hamiltonian(h: &Hamiltonian, opts: &SolveOptions) -> Result<(Vec<f6
         }
     };
     let vectors = Mat::from_fn(n, opts.count, |i, j| res.vectors[j * n + i]);
-    Ok((res.energies, vectors, res.iterations))
+    Ok((res.energies, vectors, res.iterations, res.guards))
 }

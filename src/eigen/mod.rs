@@ -149,22 +149,28 @@ pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
 /// [`solve`] with explicit parallelism for the dense kernels (`Par::Seq` inside
 /// an outer parallel loop such as [`solve_batch`]).
 pub fn solve_with_par(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
+    solve_keeping_guards(h, opts, par).map(|(s, _)| s)
+}
+
+/// [`solve_with_par`], also returning the iterative path's guard vectors
+/// (column-major; empty on the dense path) for warm-starting a nearby problem.
+fn solve_keeping_guards(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<(Spectrum, Vec<f64>)> {
     check_count(opts.count, h.size())?;
     check_tol(opts.tol)?;
     if let Some(init) = &opts.initial {
         crate::error::check_finite("initial", init)?;
     }
     let method = opts.method.resolve(h, opts.count);
-    let (energies, mut vectors, iterations) = match method {
+    let (energies, mut vectors, iterations, guards) = match method {
         Method::Dense | Method::Auto => {
             let (e, v) = dense::lowest(h, opts.count, par)?;
-            (e, v, 0)
+            (e, v, 0, Vec::new())
         }
         Method::Iterative => matrix_free::solve_hamiltonian(h, opts).map_err(absolute_residuals)?,
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(h, &energies, &vectors);
-    Ok(Spectrum {
+    let spectrum = Spectrum {
         basis: h.basis().clone(),
         units: h.units(),
         mass: h.mass().clone(),
@@ -174,7 +180,8 @@ pub fn solve_with_par(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> R
         residuals,
         method,
         iterations,
-    })
+    };
+    Ok((spectrum, guards))
 }
 
 /// Solve many Hamiltonians that share a basis, mass and units but differ in the
@@ -210,20 +217,26 @@ pub fn solve_batch(
                 .map(|items| {
                     let mut out: Vec<Spectrum> = Vec::with_capacity(items.len());
                     let mut oi = o.clone();
+                    let mut guards = Vec::new();
                     for v in items {
                         // Warm start: the previous item's vectors, linearly extrapolated from
-                        // the two previous items when available (signs are deterministic).
+                        // the two previous items when available (signs are deterministic),
+                        // then its guard vectors (as they are: only their span matters).
                         let k = out.len();
                         if k >= 1 {
                             let last = column_major(&out[k - 1].vectors);
-                            oi.initial = Some(if k >= 2 {
+                            let mut start = if k >= 2 {
                                 let before = column_major(&out[k - 2].vectors);
                                 last.iter().zip(&before).map(|(a, b)| 2.0 * a - b).collect()
                             } else {
                                 last
-                            });
+                            };
+                            start.extend_from_slice(&guards);
+                            oi.initial = Some(start);
                         }
-                        out.push(solve_with_par(&build(v)?, &oi, faer::Par::Seq)?);
+                        let (s, g) = solve_keeping_guards(&build(v)?, &oi, faer::Par::Seq)?;
+                        out.push(s);
+                        guards = g;
                     }
                     Ok(out)
                 })
