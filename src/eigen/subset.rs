@@ -103,9 +103,7 @@ impl Reduction {
 fn verified(a: MatRef<'_, f64>, vals: &[f64], v: &Mat<f64>, norm: f64) -> bool {
     let n = a.nrows();
     let k = vals.len();
-    // A is only trusted in its lower triangle: symmetrise (O(N²), cheaper than A·V).
-    let full = Mat::from_fn(n, n, |i, j| if i >= j { a[(i, j)] } else { a[(j, i)] });
-    let av = &full * v;
+    let av = super::dense::symmetric_lower_times(a, v.as_ref());
     let scale = VERIFY_TOL * (n as f64).sqrt() * vals.iter().fold(norm, |m, x| m.max(x.abs())).max(f64::MIN_POSITIVE);
     for j in 0..k {
         let r = (0..n).map(|i| (av[(i, j)] - vals[j] * v[(i, j)]).powi(2)).sum::<f64>().sqrt();

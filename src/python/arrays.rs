@@ -67,18 +67,48 @@ pub fn mat_f64(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(usize, usize, Ve
         let shape: String = arr.getattr("shape")?.str()?.extract()?;
         return Err(PyValueError::new_err(format!("`{name}` must be 2-dimensional; got shape {shape}")));
     }
-    let arr = arr.call_method1("astype", ("float64",))?;
+    let kwargs = pyo3::types::PyDict::new(arr.py());
+    kwargs.set_item("copy", false)?;
+    let arr = arr.call_method("astype", ("float64",), Some(&kwargs))?;
     let arr = arr.cast_into::<PyArray2<f64>>().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
     let ro = arr.readonly();
     let shape = ro.shape();
     let (r, c) = (shape[0], shape[1]);
-    Ok((r, c, ro.as_array().iter().cloned().collect()))
+    // Row-major data: one memcpy when the array is C-contiguous.
+    let data = match ro.as_slice() {
+        Ok(sl) => sl.to_vec(),
+        Err(_) => ro.as_array().iter().cloned().collect(),
+    };
+    Ok((r, c, data))
 }
 
-/// A faer matrix as a 2-D numpy array (copy).
+/// A faer matrix as a 2-D numpy array (copy): Fortran-ordered from a
+/// column-major matrix and C-ordered from a row-major view, copied a column
+/// (row) at a time, so neither layout needs a strided element-by-element pass.
 pub fn mat_to_py<'py>(py: Python<'py>, m: faer::MatRef<'_, f64>) -> Bound<'py, PyArray2<f64>> {
-    let a = ndarray::Array2::from_shape_fn((m.nrows(), m.ncols()), |(i, j)| m[(i, j)]);
-    PyArray2::from_owned_array(py, a)
+    use ndarray::ShapeBuilder;
+    let (r, c) = (m.nrows(), m.ncols());
+    if m.row_stride() == 1 {
+        let mut data = Vec::with_capacity(r * c);
+        for j in 0..c {
+            match m.col(j).try_as_col_major() {
+                Some(col) => data.extend_from_slice(col.as_slice()),
+                None => data.extend((0..r).map(|i| m[(i, j)])),
+            }
+        }
+        if let Ok(a) = ndarray::Array2::from_shape_vec((r, c).f(), data) {
+            return PyArray2::from_owned_array(py, a);
+        }
+    } else if m.col_stride() == 1 {
+        let mut data = Vec::with_capacity(r * c);
+        for i in 0..r {
+            data.extend((0..c).map(|j| m[(i, j)]));
+        }
+        if let Ok(a) = ndarray::Array2::from_shape_vec((r, c), data) {
+            return PyArray2::from_owned_array(py, a);
+        }
+    }
+    PyArray2::from_owned_array(py, ndarray::Array2::from_shape_fn((r, c), |(i, j)| m[(i, j)]))
 }
 
 /// The transpose of a faer matrix as a 2-D numpy array (copy).

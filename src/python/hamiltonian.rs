@@ -523,8 +523,8 @@ pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py,
     }
     let (vals, vecs) = py
         .detach(move || {
-            let m = faer::Mat::from_fn(r, r, |i, j| data[i * r + j]);
-            crate::eigen::dense::eigh(m.as_ref(), faer::get_global_parallelism())
+            // Row-major data viewed in place (only the lower triangle is read).
+            crate::eigen::dense::eigh(faer::MatRef::from_row_major_slice(&data, r, r), faer::get_global_parallelism())
         })
         .py(py)?;
     Ok((PyArray1::from_vec(py, vals), mat_to_py(py, vecs.as_ref())))
