@@ -33,7 +33,7 @@ import specwell as sw
 
 EPS = np.finfo(float).eps
 ROUNDOFF_FACTOR = 64.0  # documented floor factor of the iterative tolerance (matrix_free.rs)
-AUTO_DENSE_MAX = 1024  # documented size limit of the "auto" dense choice (matrix_free.rs)
+AUTO_DENSE_MAX = 512  # documented size limit of the "auto" dense choice (matrix_free.rs)
 
 # ħ²/(2 m_e) in meV nm², from CODATA values in scipy.constants.
 H2M = C.hbar**2 / (2 * C.m_e) / (C.e * 1e-3) * 1e18
@@ -396,7 +396,7 @@ def test_auto_picks_iterative_for_large_grid_small_count():
 
 def test_auto_threshold_and_small_grids_are_dense():
     # Documented rule: dense up to AUTO_DENSE_MAX points.
-    for n in (64, 512, AUTO_DENSE_MAX):
+    for n in (64, 256, AUTO_DENSE_MAX):
         grid = sw.FourierGrid(-10.0, 10.0, n)
         h = sw.Hamiltonian(grid, 0.5 * grid.x**2)
         s = h.solve(3)

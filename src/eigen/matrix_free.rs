@@ -14,7 +14,7 @@ pub const ROUNDOFF_FACTOR: f64 = 64.0;
 
 /// Dense is used up to this size; above it, `method="auto"` goes matrix-free on
 /// Fourier grids when `count` is small (see [`auto_choice`]).
-pub const AUTO_DENSE_MAX: usize = 1024;
+pub const AUTO_DENSE_MAX: usize = 512;
 
 /// The rule of `method="auto"`: dense for Hermite bases, for grids up to
 /// [`AUTO_DENSE_MAX`] points, and when more than a quarter of the spectrum is
