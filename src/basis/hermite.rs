@@ -153,7 +153,8 @@ impl HermiteBasis {
             let rows = (self.size + 1 - parity) / 2;
             let scaled = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)] * w(k));
             let plain = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)]);
-            let mut out = &scaled * plain.transpose();
+            let mut out = Mat::<f64>::zeros(rows, rows);
+            faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, &scaled, plain.transpose(), 1.0, crate::par_for(2 * rows * rows * cols));
             for i in 0..rows {
                 for j in 0..i {
                     let a = 0.5 * (out[(i, j)] + out[(j, i)]);
@@ -207,7 +208,10 @@ impl Basis for HermiteBasis {
     }
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         // ψ(x_k)·sqrt(λ_k L): same sign as ψ at the nodes.
-        self.phi.transpose() * coefs
+        let mut out = Mat::<f64>::zeros(self.phi.ncols(), coefs.ncols());
+        let par = crate::par_for(2 * self.phi.nrows() * self.phi.ncols() * coefs.ncols());
+        faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, self.phi.transpose(), coefs, 1.0, par);
+        out
     }
     fn describe(&self) -> String {
         format!(
