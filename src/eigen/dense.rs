@@ -87,15 +87,8 @@ pub fn symmetric_lower_times(a: MatRef<'_, f64>, x: MatRef<'_, f64>) -> Mat<f64>
 
 /// Standard normal deviate (SplitMix64 + Box-Muller); deterministic.
 fn gaussian(state: &mut u64) -> f64 {
-    let mut next = || {
-        *state = state.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = *state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    };
-    let u1 = next().max(f64::MIN_POSITIVE);
-    let u2 = next();
+    let u1 = super::subset::uniform(state).max(f64::MIN_POSITIVE);
+    let u2 = super::subset::uniform(state);
     (-2.0 * u1.ln()).sqrt() * (2.0 * std::f64::consts::PI * u2).cos()
 }
 

@@ -398,7 +398,7 @@ fn norm2(x: &[f64]) -> f64 {
 }
 
 /// Uniform deviate in [0, 1) (SplitMix64); deterministic.
-fn uniform(state: &mut u64) -> f64 {
+pub(crate) fn uniform(state: &mut u64) -> f64 {
     *state = state.wrapping_add(0x9e37_79b9_7f4a_7c15);
     let mut z = *state;
     z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
