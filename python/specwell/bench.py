@@ -295,9 +295,25 @@ def split_step_1024(args: argparse.Namespace) -> Row:
     """Strang split step, N = 1024, per step."""
     steps = 2000 if args.quick else 20000
     t_sw, t_np, err = _split_step_case(1024, steps, args)
-    fft_pair = sw._core._bare_fft_pair_seconds(1024, 5)
+    floor = _step_over_fft_pair(1024, 10 if args.quick else 30)
     return Row("split step N=1024 (per step)", t_sw, t_np, "scipy.fft loop, overwrite_x, phases precomputed",
-               f"ratio ≥ 3.5; specwell/2 bare FFTs = {t_sw / fft_pair:.2f} (target ≤ 1.3)", f"max rel. diff {err:.1e}")
+               f"ratio ≥ 3.5; specwell/2 bare FFTs = {floor:.2f} (target ≤ 1.3)", f"max rel. diff {err:.1e}")
+
+
+def _step_over_fft_pair(n: int, rounds: int) -> float:
+    """Split step over two bare FFTs of the same size, timed alternately (about 10 ms
+    each, best of `rounds`) so that both see the same machine conditions."""
+    grid = sw.FourierGrid(-40.0, 40.0, n)
+    prop = sw.SplitStep(grid, lambda x: 0.5 * x**2 + 0.01 * x**4, dt=1e-3)
+    psi0 = sw.gaussian_packet(grid, 1.0, 0.5, 1.0)
+    steps = max(1, 2_000_000 // n)
+    t_step, t_pair = float("inf"), float("inf")
+    for _ in range(rounds):
+        t0 = time.perf_counter()
+        prop.run(psi0, steps, record_every=steps)
+        t_step = min(t_step, (time.perf_counter() - t0) / steps)
+        t_pair = min(t_pair, sw._core._bare_fft_pair_seconds(n, 1))
+    return t_step / t_pair
 
 
 @bench
