@@ -184,7 +184,8 @@ class Hamiltonian:
             Warm start for the iterative path. Without it, a large grid starts from the
             same problem solved on a coarser grid of the same box (then interpolated).
         seed : int, optional
-            Seed of the iterative path's random start block, in [0, 2**63).
+            Seed of the iterative path's random vectors (the start block when there is neither
+            ``initial`` nor a coarser grid to start from, and any columns ``initial`` lacks), in [0, 2**63).
 
         Returns
         -------
