@@ -339,6 +339,16 @@ fn check_state(argument: &str, psi: &[Complex64], n: usize, offset: usize) -> st
             "all zeros",
         ));
     }
+    // Norms, energies and the autocorrelation are sums of |ψ|²: refuse a state whose
+    // sum overflows instead of reporting inf for them.
+    if !psi.iter().map(|z| z.norm_sqr()).sum::<f64>().is_finite() {
+        let max = psi.iter().fold(0.0_f64, |m, z| m.max(z.re.abs()).max(z.im.abs()));
+        return Err(InputError::range(
+            argument,
+            "a state with finite Σ|ψ|² (rescale it; |ψ| up to about 1e150)",
+            format!("max |component| {max:e}, Σ|ψ|² overflows"),
+        ));
+    }
     Ok(())
 }
 

@@ -319,6 +319,17 @@ def test_huge_finite_potential_is_refused():
         sw.Hamiltonian(sw.FourierGrid(0.0, 1.0, 8), np.full(8, 1e308))
 
 
+def test_state_whose_norm_overflows_is_refused():
+    # Finite components, but Σ|ψ|² overflows float64: norms and energies would be inf.
+    grid = sw.FourierGrid(-5.0, 5.0, 64)
+    prop = sw.SplitStep(grid, 0.5 * grid.x**2, dt=0.01)
+    psi = sw.gaussian_packet(grid, 0.0, p0=0.0, sigma=1.0) * 1e160
+    assert np.all(np.isfinite(psi))
+    with pytest.raises(ValueError, match=r"`psi0`.*finite Σ\|ψ\|²"):
+        prop.run(psi, 3)
+    prop.run(psi * 1e-20, 3)  # |ψ| ~ 1e140: accepted
+
+
 def test_float_size_is_type_error_naming_argument():
     with pytest.raises(TypeError, match=r"`size`"):
         sw.HermiteBasis(2.5)

@@ -382,9 +382,8 @@ def test_fuzz_run(data):
                             ("record_every", st.integers(1, 5), True, True), ("progress", st.just(False), True, True)])
     r = attempt(SS.run, *a, **k)
     if r is not None:
-        # Huge-but-finite ψ0 (|ψ| ~ 1e153) is accepted and its norm overflows to inf, so
-        # only the shape is a contract here.
         assert r.states.shape[1] == PSI.size and len(r.norm) == len(r.times)
+        assert np.all(np.isfinite(r.norm))  # states whose Σ|ψ|² overflows are refused
 
 
 @fuzz_settings
