@@ -116,7 +116,8 @@ pub fn lowest(h: &Hamiltonian, count: usize, par: Par) -> Result<(Vec<f64>, Mat<
 
 /// Lowest `count` eigenpairs of a matrix given by its even and odd parity blocks
 /// (rows/columns 0, 2, 4, … and 1, 3, 5, … of the full matrix): the lowest
-/// `count` of each block, merged by energy, scattered back to full vectors.
+/// eigenvalues of each block (as many as can be among the lowest `count` of the
+/// union), vectors for those that are, scattered back to full vectors.
 fn lowest_by_parity(blocks: &[Mat<f64>; 2], count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
     let n = blocks[0].nrows() + blocks[1].nrows();
     // (energy, parity, coefficients in the block)
