@@ -323,46 +323,32 @@ impl BandLu {
     /// iteration: the solve then yields a huge, still correctly directed vector).
     fn factor(&mut self, d: &[f64], e: &[f64], sigma: f64, tiny: f64) {
         let n = d.len();
-        // Current row i holds (a, b, c) at columns (i, i+1, i+2).
+        // The current row i holds (a, b) at columns (i, i+1); its column i+2 is zero
+        // (neither row i nor row i+1 of T reaches two columns further).
         let mut a = d[0] - sigma;
         let mut b = if n > 1 { e[0] } else { 0.0 };
-        let mut c = 0.0;
         for i in 0..n {
-            if i + 1 < n {
-                // Row i+1 holds (e_i, d_{i+1} − σ, e_{i+1}) at columns (i, i+1, i+2).
-                let (na, nb, nc) = (e[i], d[i + 1] - sigma, if i + 2 < n { e[i + 1] } else { 0.0 });
-                if na.abs() > a.abs() {
-                    // Swap rows: pivot row is row i+1.
-                    self.swap[i] = true;
-                    let m = a / na;
-                    self.l[i] = m;
-                    self.u0[i] = na;
-                    self.u1[i] = nb;
-                    self.u2[i] = nc;
-                    a = b - m * nb;
-                    b = c - m * nc;
-                    c = 0.0;
-                } else {
-                    self.swap[i] = false;
-                    let piv = if a == 0.0 { tiny } else { a };
-                    let m = na / piv;
-                    self.l[i] = m;
-                    self.u0[i] = piv;
-                    self.u1[i] = b;
-                    self.u2[i] = c;
-                    a = nb - m * b;
-                    b = nc - m * c;
-                    c = 0.0;
-                }
-                if self.u0[i] == 0.0 {
-                    self.u0[i] = tiny;
-                }
-            } else {
+            if i + 1 == n {
                 self.swap[i] = false;
                 self.u0[i] = if a == 0.0 { tiny } else { a };
                 self.u1[i] = 0.0;
                 self.u2[i] = 0.0;
+                break;
             }
+            // Row i+1 holds (e_i, d_{i+1} − σ, e_{i+1}) at columns (i, i+1, i+2).
+            let next = (e[i], d[i + 1] - sigma, if i + 2 < n { e[i + 1] } else { 0.0 });
+            let current = (a, b, 0.0);
+            // Partial pivoting: the row with the larger entry in column i is the pivot row.
+            self.swap[i] = next.0.abs() > a.abs();
+            let (pivot, other) = if self.swap[i] { (next, current) } else { (current, next) };
+            let piv = if pivot.0 == 0.0 { tiny } else { pivot.0 };
+            let m = other.0 / piv;
+            self.l[i] = m;
+            self.u0[i] = piv;
+            self.u1[i] = pivot.1;
+            self.u2[i] = pivot.2;
+            a = other.1 - m * pivot.1;
+            b = other.2 - m * pivot.2;
         }
     }
 
