@@ -734,13 +734,7 @@ impl LayeredProblem {
             .collect();
         let mut g = Mat::from_fn(n, n, |j, l| cols[l][j]);
         // Symmetrise away rounding.
-        for j in 0..n {
-            for l in 0..j {
-                let v = 0.5 * (g[(j, l)] + g[(l, j)]);
-                g[(j, l)] = v;
-                g[(l, j)] = v;
-            }
-        }
+        crate::linalg::symmetrize(&mut g);
         g
     }
 
@@ -792,13 +786,7 @@ impl LayeredProblem {
         let mut c = x.transpose().to_owned();
         drop(x);
         solve_lower_triangular_in_place(lfac.as_ref(), c.as_mut(), par); // L⁻¹AL⁻ᵀ
-        for j in 0..n {
-            for l in 0..j {
-                let v = 0.5 * (c[(j, l)] + c[(l, j)]);
-                c[(j, l)] = v;
-                c[(l, j)] = v;
-            }
-        }
+        crate::linalg::symmetrize(&mut c);
         let (vals, mut v) = lowest_of_matrix(c.as_ref(), count, par)?;
         drop(c);
         solve_upper_triangular_in_place(lfac.transpose(), v.as_mut(), par);

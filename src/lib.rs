@@ -30,22 +30,12 @@ pub mod eigen;
 pub mod error;
 pub mod hamiltonian;
 pub mod heterostructure;
+mod linalg;
 pub mod observables;
 pub mod propagate;
 pub mod units;
 
 mod python;
-
-/// Parallelism for a dense kernel of about `flops` floating-point operations:
-/// sequential below 2·10⁷ (measured: rayon's fork/join then costs 50–100 µs, more
-/// than a 200×210×20 product takes), faer's global setting above.
-pub(crate) fn par_for(flops: usize) -> faer::Par {
-    if flops < 20_000_000 {
-        faer::Par::Seq
-    } else {
-        faer::get_global_parallelism()
-    }
-}
 
 pub use basis::{Basis, BasisRef, FourierGrid, HermiteBasis};
 pub use eigen::{solve, Method, SolveOptions, Spectrum};

@@ -114,13 +114,7 @@ impl HermiteBasis {
         let scaled = Mat::from_fn(self.size, self.nodes.len(), |n, k| self.phi[(n, k)] * v[k]);
         let mut out = &scaled * self.phi.transpose();
         // Symmetrise against rounding in the product.
-        for i in 0..self.size {
-            for j in 0..i {
-                let a = 0.5 * (out[(i, j)] + out[(j, i)]);
-                out[(i, j)] = a;
-                out[(j, i)] = a;
-            }
-        }
+        crate::linalg::symmetrize(&mut out);
         out
     }
 
@@ -154,14 +148,8 @@ impl HermiteBasis {
             let scaled = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)] * w(k));
             let plain = Mat::from_fn(rows, cols, |r, k| self.phi[(2 * r + parity, k)]);
             let mut out = Mat::<f64>::zeros(rows, rows);
-            faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, &scaled, plain.transpose(), 1.0, crate::par_for(2 * rows * rows * cols));
-            for i in 0..rows {
-                for j in 0..i {
-                    let a = 0.5 * (out[(i, j)] + out[(j, i)]);
-                    out[(i, j)] = a;
-                    out[(j, i)] = a;
-                }
-            }
+            faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, &scaled, plain.transpose(), 1.0, crate::linalg::par_for(2 * rows * rows * cols));
+            crate::linalg::symmetrize(&mut out);
             out
         };
         Some((block(0), block(1)))
@@ -209,7 +197,7 @@ impl Basis for HermiteBasis {
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         // ψ(x_k)·sqrt(λ_k L): same sign as ψ at the nodes.
         let mut out = Mat::<f64>::zeros(self.phi.ncols(), coefs.ncols());
-        let par = crate::par_for(2 * self.phi.nrows() * self.phi.ncols() * coefs.ncols());
+        let par = crate::linalg::par_for(2 * self.phi.nrows() * self.phi.ncols() * coefs.ncols());
         faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, self.phi.transpose(), coefs, 1.0, par);
         out
     }

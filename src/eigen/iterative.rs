@@ -285,16 +285,7 @@ fn transform_in_place(buf: &mut [f64], dim: usize, c0: usize, kin: usize, coef: 
 // ---------------------------------------------------------------------------
 // Small dense helpers
 
-fn symmetrize(h: &mut Mat<f64>) {
-    let n = h.nrows();
-    for j in 0..n {
-        for i in 0..j {
-            let v = 0.5 * (h[(i, j)] + h[(j, i)]);
-            h[(i, j)] = v;
-            h[(j, i)] = v;
-        }
-    }
-}
+use crate::linalg::symmetrize;
 
 fn all_finite(h: &Mat<f64>) -> bool {
     (0..h.ncols()).all(|j| (0..h.nrows()).all(|i| h[(i, j)].is_finite()))
