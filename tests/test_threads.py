@@ -155,16 +155,18 @@ def test_gil_released_during_heavy_work(name):
     grid = sw.FourierGrid(-30.0, 30.0, 900)
     V = 0.5 * grid.x**2
     if name == "dense":
-        # Large enough (≈0.5 s on 2 idle cores) that the workload check below cannot flake.
+        # Large enough (≈0.55 s on 2 idle cores) that the workload check below cannot flake:
+        # more than a quarter of the spectrum, so all pairs are computed (a few lowest
+        # pairs take the faster subset solver, ≈0.3 s, too close to the 0.2 s floor).
         dense_grid = sw.FourierGrid(-30.0, 30.0, 1500)
         H = sw.Hamiltonian(dense_grid, 0.5 * dense_grid.x**2)
-        fn = lambda: H.solve(5, method="dense")  # noqa: E731
+        fn = lambda: H.solve(400, method="dense")  # noqa: E731
     elif name == "iterative":
         big = sw.FourierGrid(-60.0, 60.0, 2**13)
         H = sw.Hamiltonian(big, 0.5 * big.x**2 + 0.01 * big.x**4)
         fn = lambda: H.solve(6, method="iterative", tol=1e-11)  # noqa: E731
     elif name == "batch":
-        pots = np.array([V + 0.01 * i * grid.x for i in range(6)])
+        pots = np.array([V + 0.01 * i * grid.x for i in range(10)])  # ≈0.5 s with the subset solver
         fn = lambda: sw.solve_batch(grid, pots, 3, method="dense")  # noqa: E731
     else:
         g = sw.FourierGrid(-40.0, 40.0, 4096)

@@ -83,32 +83,31 @@ pub fn mat_f64(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(usize, usize, Ve
 }
 
 /// A faer matrix as a 2-D numpy array (copy): Fortran-ordered from a
-/// column-major matrix and C-ordered from a row-major view, copied a column
-/// (row) at a time, so neither layout needs a strided element-by-element pass.
+/// column-major matrix and C-ordered from a row-major view (whose transpose is
+/// column-major), copied a contiguous column at a time, so neither layout needs a
+/// strided element-by-element pass.
 pub fn mat_to_py<'py>(py: Python<'py>, m: faer::MatRef<'_, f64>) -> Bound<'py, PyArray2<f64>> {
     use ndarray::ShapeBuilder;
     let (r, c) = (m.nrows(), m.ncols());
-    if m.row_stride() == 1 {
-        let mut data = Vec::with_capacity(r * c);
-        for j in 0..c {
-            match m.col(j).try_as_col_major() {
-                Some(col) => data.extend_from_slice(col.as_slice()),
-                None => data.extend((0..r).map(|i| m[(i, j)])),
-            }
-        }
-        if let Ok(a) = ndarray::Array2::from_shape_vec((r, c).f(), data) {
-            return PyArray2::from_owned_array(py, a);
-        }
+    let (cols, fortran) = if m.row_stride() == 1 {
+        (m, true)
     } else if m.col_stride() == 1 {
-        let mut data = Vec::with_capacity(r * c);
-        for i in 0..r {
-            data.extend((0..c).map(|j| m[(i, j)]));
-        }
-        if let Ok(a) = ndarray::Array2::from_shape_vec((r, c), data) {
-            return PyArray2::from_owned_array(py, a);
+        (m.transpose(), false)
+    } else {
+        return PyArray2::from_owned_array(py, ndarray::Array2::from_shape_fn((r, c), |(i, j)| m[(i, j)]));
+    };
+    let mut data = Vec::with_capacity(r * c);
+    for j in 0..cols.ncols() {
+        match cols.col(j).try_as_col_major() {
+            Some(col) => data.extend_from_slice(col.as_slice()),
+            None => data.extend((0..cols.nrows()).map(|i| cols[(i, j)])),
         }
     }
-    PyArray2::from_owned_array(py, ndarray::Array2::from_shape_fn((r, c), |(i, j)| m[(i, j)]))
+    let shaped = if fortran { ndarray::Array2::from_shape_vec((r, c).f(), data) } else { ndarray::Array2::from_shape_vec((r, c), data) };
+    match shaped {
+        Ok(a) => PyArray2::from_owned_array(py, a),
+        Err(_) => PyArray2::from_owned_array(py, ndarray::Array2::from_shape_fn((r, c), |(i, j)| m[(i, j)])),
+    }
 }
 
 /// The transpose of a faer matrix as a 2-D numpy array (copy).
