@@ -271,12 +271,16 @@ def _numpy_split_step(psi, vphase, kphase, steps):
     return psi
 
 
-def _split_step_case(n: int, steps: int, args: argparse.Namespace):
+def _split_step_problem(n: int):
+    """The propagation job of the split-step rows: (grid, potential, dt, propagator, ψ0)."""
     grid = sw.FourierGrid(-40.0, 40.0, n)
-    pot = lambda x: 0.5 * x**2 + 0.01 * x**4  # noqa: E731
     dt = 1e-3
-    prop = sw.SplitStep(grid, pot, dt=dt)
-    psi0 = sw.gaussian_packet(grid, 1.0, 0.5, 1.0)
+    prop = sw.SplitStep(grid, _anharmonic, dt=dt)
+    return grid, _anharmonic, dt, prop, sw.gaussian_packet(grid, 1.0, 0.5, 1.0)
+
+
+def _split_step_case(n: int, steps: int, args: argparse.Namespace):
+    grid, pot, dt, prop, psi0 = _split_step_problem(n)
     v = pot(grid.x)
     vphase = np.exp(-1j * v * dt)  # merged half kicks
     kphase = np.exp(-1j * 0.5 * grid.k**2 * dt)
@@ -303,9 +307,7 @@ def split_step_1024(args: argparse.Namespace) -> Row:
 def _step_over_fft_pair(n: int, rounds: int) -> float:
     """Split step over two bare FFTs of the same size, timed alternately (about 10 ms
     each, best of `rounds`) so that both see the same machine conditions."""
-    grid = sw.FourierGrid(-40.0, 40.0, n)
-    prop = sw.SplitStep(grid, lambda x: 0.5 * x**2 + 0.01 * x**4, dt=1e-3)
-    psi0 = sw.gaussian_packet(grid, 1.0, 0.5, 1.0)
+    _, _, _, prop, psi0 = _split_step_problem(n)
     steps = max(1, 2_000_000 // n)
     t_step, t_pair = float("inf"), float("inf")
     for _ in range(rounds):
