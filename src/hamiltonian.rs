@@ -373,9 +373,7 @@ fn hermite_apply(b: &HermiteBasis, kinetic: &Kinetic, v: &[f64], x: &[f64], y: &
     let phi = b.phi();
     let xs = faer::MatRef::from_column_major_slice(&x[..n * ncols], n, ncols);
     // q = V ⊙ (Φᵀ x), then y = c·p̂² x + Φ q (two matrix products over the block).
-    let par = crate::linalg::par_for(4 * n * phi.ncols() * ncols);
-    let mut q = Mat::<f64>::zeros(phi.ncols(), ncols);
-    faer::linalg::matmul::matmul(q.as_mut(), faer::Accum::Replace, phi.transpose(), xs, 1.0, par);
+    let mut q = b.nodal_values(xs);
     for j in 0..ncols {
         for (k, &vk) in v.iter().enumerate() {
             q[(k, j)] *= vk;
@@ -395,6 +393,7 @@ fn hermite_apply(b: &HermiteBasis, kinetic: &Kinetic, v: &[f64], x: &[f64], y: &
             ys[(i, j)] = c * t;
         }
     }
+    let par = crate::linalg::par_for(2 * n * phi.ncols() * ncols);
     faer::linalg::matmul::matmul(ys.as_mut(), faer::Accum::Add, phi, q.as_ref(), 1.0, par);
 }
 

@@ -102,6 +102,15 @@ impl HermiteBasis {
         self.phi.as_ref()
     }
 
+    /// Φᵀ·C (M × k): the states with coefficient columns C at the quadrature
+    /// nodes, ψ(x_k)·sqrt(λ_k L).
+    pub fn nodal_values(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
+        let mut out = Mat::<f64>::zeros(self.phi.ncols(), coefs.ncols());
+        let par = crate::linalg::par_for(2 * self.phi.nrows() * self.phi.ncols() * coefs.ncols());
+        faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, self.phi.transpose(), coefs, 1.0, par);
+        out
+    }
+
     /// The N×N matrix of −d²/dx² = p̂²/L² (exact, pentadiagonal).
     pub fn neg_laplacian(&self) -> Mat<f64> {
         let s = 1.0 / (self.length * self.length);
@@ -196,10 +205,7 @@ impl Basis for HermiteBasis {
     }
     fn sample_sign_profile(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         // ψ(x_k)·sqrt(λ_k L): same sign as ψ at the nodes.
-        let mut out = Mat::<f64>::zeros(self.phi.ncols(), coefs.ncols());
-        let par = crate::linalg::par_for(2 * self.phi.nrows() * self.phi.ncols() * coefs.ncols());
-        faer::linalg::matmul::matmul(out.as_mut(), faer::Accum::Replace, self.phi.transpose(), coefs, 1.0, par);
-        out
+        self.nodal_values(coefs)
     }
     fn describe(&self) -> String {
         format!(
