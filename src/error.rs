@@ -60,6 +60,11 @@ pub enum NumericalError {
     /// An iterative eigensolver stopped at `max_iter` with residuals above tolerance.
     /// Carries the best estimates so the caller can inspect them.
     NotConverged { iterations: usize, tol: f64, energies: Vec<f64>, residuals: Vec<f64> },
+    /// Imaginary-time relaxation stopped at `steps` with energies still drifting:
+    /// `rates` are |dE/dτ| (energy/time) of every state at the last check.
+    NotSettled { steps: usize, tol: f64, energies: Vec<f64>, rates: Vec<f64> },
+    /// A quantity that must stay finite blew up (e.g. the norm of a propagated state).
+    Diverged(String),
     /// The dense eigensolver failed (should not happen for finite symmetric input).
     EigenFailed(String),
 }
@@ -72,9 +77,18 @@ impl fmt::Display for NumericalError {
                 write!(
                     f,
                     "iterative method did not reach tol={tol:e} within {iterations} iterations \
-                     (largest residual {worst:e}); raise `max_iter`/`max_steps`, loosen `tol`, or use method=\"dense\""
+                     (largest residual {worst:e}); raise `max_iter`, loosen `tol`, or use method=\"dense\""
                 )
             }
+            NumericalError::NotSettled { steps, tol, rates, .. } => {
+                let worst = rates.iter().cloned().fold(0.0_f64, f64::max);
+                write!(
+                    f,
+                    "imaginary-time relaxation did not settle to |dE/dτ| < tol={tol:e} within {steps} steps \
+                     (largest rate {worst:e}); raise `max_steps`, loosen `tol` or take a larger dt"
+                )
+            }
+            NumericalError::Diverged(s) => write!(f, "{s}"),
             NumericalError::EigenFailed(s) => write!(f, "dense eigensolver failed: {s}"),
         }
     }

@@ -9,7 +9,7 @@ fn spectrum(basis: BasisRef, v: impl Fn(f64) -> f64, mass: f64, count: usize) ->
     let h = Hamiltonian::new(basis, pot, Mass::Uniform(mass), Units::Natural).unwrap();
     let mut o = SolveOptions::new(count);
     o.method = specwell::Method::Dense;
-    solve(&h, &o).unwrap().energies
+    solve(&Arc::new(h), &o).unwrap().energies
 }
 
 #[test]

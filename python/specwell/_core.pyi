@@ -208,6 +208,12 @@ class Hamiltonian:
     def units(self) -> str:
         """Unit system name."""
     @property
+    def mass(self) -> Union[float, npt.NDArray[np.float64]]:
+        """The mass as given (a float, or an array on the grid points; for a heterostructure the layer masses at the nodes)."""
+    @property
+    def heterostructure(self) -> Optional[Heterostructure]:
+        """The Heterostructure of a layered Hamiltonian, else None."""
+    @property
     def size(self) -> int:
         """Matrix dimension N."""
 
@@ -245,6 +251,9 @@ class Spectrum:
     @property
     def heterostructure(self) -> Optional[Heterostructure]:
         """The Heterostructure of a layered spectrum, else None."""
+    @property
+    def hamiltonian(self) -> Hamiltonian:
+        """The Hamiltonian whose eigenpairs these are."""
     def wavefunctions(self, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) for every state, shape (count, len(x)), normalised ∫|ψ|² dx = 1.
 
@@ -384,6 +393,9 @@ class SplitStep:
                  order: Optional[int] = None, units: str = "natural", *, drive: Union[Callable[..., npt.ArrayLike], npt.ArrayLike, None] = None,
                  drive_potential: Optional[_PotentialLike] = None, absorber_width: Optional[float] = None,
                  absorber_potential: Optional[_PotentialLike] = None, imaginary_time: bool = False) -> SplitStep: ...
+    @property
+    def mass(self) -> float:
+        """Particle mass (mass unit of ``units``)."""
     def run(self, psi0: npt.ArrayLike, steps: int, record_every: Optional[int] = None, progress: bool = False) -> Run:
         """Propagate ``psi0`` (samples on the grid) for ``steps`` steps.
 
@@ -522,7 +534,7 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.A
     Batch
     """
 
-def _spectrum_from_parts(basis: object, units: str, mass: object, energies: npt.ArrayLike, vectors: npt.ArrayLike,
+def _spectrum_from_parts(hamiltonian: Hamiltonian, energies: npt.ArrayLike, vectors: npt.ArrayLike,
                          residuals: npt.ArrayLike, method: str, iterations: int) -> Spectrum: ...
 def _split_step_from_parts(grid: FourierGrid, potential: _PotentialLike, mass: float, dt: float, order: int, units: str,
                            drive: object, drive_potential: object, absorber_width: Optional[float],

@@ -34,6 +34,33 @@ def _basis_from_header(h: dict):
     raise ValueError(f"unknown basis kind {h['kind']!r} in file")
 
 
+def _hamiltonian_parts(h, header: dict, arrays: dict) -> None:
+    """Header entries and arrays that rebuild the Hamiltonian `h`."""
+    header.update(units=h.units, basis=_basis_header(h.basis))
+    stack = h.heterostructure
+    if stack is not None:
+        header["heterostructure"] = {"field_kv_cm": stack.field_kv_cm,
+                                     "layers": [[l.thickness, l.band_edge, l.mass] for l in stack.layers]}
+        return
+    arrays["potential"] = h.potential
+    mass = h.mass
+    header["mass_is_array"] = isinstance(mass, np.ndarray)
+    if header["mass_is_array"]:
+        arrays["mass"] = mass
+    else:
+        header["mass"] = float(mass)
+
+
+def _hamiltonian_from_parts(header: dict, f) -> "_core.Hamiltonian":
+    basis = _basis_from_header(header["basis"])
+    if "heterostructure" in header:
+        h = header["heterostructure"]
+        stack = _core.Heterostructure([_core.Layer(*l) for l in h["layers"]], h["field_kv_cm"])
+        return _core.Hamiltonian(basis, stack, units=header["units"])
+    mass = f["mass"] if header["mass_is_array"] else header["mass"]
+    return _core.Hamiltonian(basis, f["potential"], mass, header["units"])
+
+
 def save(result, path: Union[str, os.PathLike]) -> None:
     """Save a Spectrum or a Run to ``path`` (.npz): plain arrays plus a JSON header.
 
@@ -45,21 +72,11 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         Destination; numpy appends ``.npz`` if missing.
     """
     if isinstance(result, _core.Spectrum):
-        header = {"format": _FORMAT, "version": _VERSION, "type": "Spectrum", "units": result.units,
-                  "method": result.method, "iterations": result.iterations,
-                  "basis": _basis_header(result.basis), "mass_is_array": False}
-        mass = result._mass
-        stack = result.heterostructure
-        if stack is not None:
-            header["heterostructure"] = {"field_kv_cm": stack.field_kv_cm,
-                                         "layers": [[l.thickness, l.band_edge, l.mass] for l in stack.layers]}
+        header = {"format": _FORMAT, "version": _VERSION, "type": "Spectrum", "method": result.method,
+                  "iterations": result.iterations}
         arrays = dict(energies=result.energies, vectors=result.vectors, residuals=result.residuals,
                       x=result.x)
-        if isinstance(mass, np.ndarray):
-            header["mass_is_array"] = True
-            arrays["mass"] = mass
-        else:
-            header["mass"] = float(mass)
+        _hamiltonian_parts(result.hamiltonian, header, arrays)
     elif isinstance(result, _core.Run):
         header = {"format": _FORMAT, "version": _VERSION, "type": "Run", "units": result.units,
                   "basis": _basis_header(result.grid), "absorbed_norm": result.absorbed_norm,
@@ -85,13 +102,7 @@ def load(path: Union[str, os.PathLike]):
             raise ValueError(f"`path` is not a specwell result file (format {header.get('format')!r})")
         kind = header["type"]
         if kind == "Spectrum":
-            basis = _basis_from_header(header["basis"])
-            mass = f["mass"] if header["mass_is_array"] else header["mass"]
-            if "heterostructure" in header:
-                h = header["heterostructure"]
-                stack = _core.Heterostructure([_core.Layer(*l) for l in h["layers"]], h["field_kv_cm"])
-                basis = (basis, stack)
-            return _core._spectrum_from_parts(basis, header["units"], mass, f["energies"], f["vectors"],
+            return _core._spectrum_from_parts(_hamiltonian_from_parts(header, f), f["energies"], f["vectors"],
                                               f["residuals"], header["method"], header["iterations"])
         loaders = _LOADERS.get(kind)
         if loaders is None:
@@ -108,3 +119,13 @@ def _load_run(header: dict, f: dict):
 
 
 _LOADERS: dict = {"Run": _load_run}
+
+
+def _save_method(self, path: Union[str, os.PathLike]) -> None:
+    """Save to a ``.npz`` file (see :func:`specwell.save`)."""
+    save(self, path)
+
+
+# Results save themselves through the one writer above.
+for _cls in (_core.Spectrum,):
+    _cls.save = _save_method

@@ -59,7 +59,7 @@ impl FourierGrid {
             return Err(InputError::range("points", "small enough that (stop - start)/points > 0", points));
         }
         let x = (0..n).map(|j| start + j as f64 * dx).collect();
-        let k = (0..n).map(|p| wavenumber(p, n, dx)).collect();
+        let k = wavenumbers(n, dx);
         let mut planner = FftPlanner::new();
         let forward = planner.plan_fft_forward(n);
         let inverse = planner.plan_fft_inverse(n);
@@ -99,7 +99,7 @@ impl FourierGrid {
     }
     /// Whether n is even, i.e. the grid has a Nyquist mode.
     pub fn has_nyquist(&self) -> bool {
-        self.x.len() % 2 == 0
+        self.x.len().is_multiple_of(2)
     }
 
     /// First column of a real circulant matrix whose eigenvalue on mode p is `symbol[p]`
@@ -149,7 +149,7 @@ impl FourierGrid {
     pub fn upsample(&self, values: &[f64], fine: &FourierGrid) -> Vec<f64> {
         let n = self.len();
         let m = fine.len();
-        debug_assert!(values.len() == n && m >= n && m % n == 0);
+        debug_assert!(values.len() == n && m >= n && m.is_multiple_of(n));
         let mut buf: Vec<Complex64> = values.iter().map(|&v| Complex64::new(v, 0.0)).collect();
         let mut scratch = vec![Complex64::new(0.0, 0.0); self.forward.get_inplace_scratch_len().max(fine.inverse.get_inplace_scratch_len())];
         self.forward.process_with_scratch(&mut buf, &mut scratch);
@@ -171,33 +171,59 @@ impl FourierGrid {
     }
 
     /// Trigonometric interpolation of grid states (columns of `values`, samples ψ(x_j))
-    /// at arbitrary points; the Nyquist term enters as a cosine so real data stay real.
+    /// at arbitrary points (periodic: points outside the box see its periodic images);
+    /// the Nyquist term enters as a cosine so real data stay real.
     pub fn interpolate(&self, values: MatRef<'_, f64>, x: &[f64]) -> Mat<f64> {
+        self.trig_series(values, x, 1.0)
+    }
+
+    /// The one trigonometric series evaluator: for each column of `values` (n samples),
+    /// Σ_p (X_p/n) e^{i k_p (x − start)} at the points `x`, with X = DFT(column) and the
+    /// Nyquist term of an even n written as `nyquist_factor`·(X_{n/2}/n)·cos(π n (x − start)/L)
+    /// (1 reproduces the samples; √2 gives the normalised cosine √(2/L)·cos of a
+    /// Galerkin basis whose Nyquist function is that cosine). The phases are advanced by
+    /// a complex recurrence resynchronised every 32 modes. O(n·(k + len(x))).
+    pub fn trig_series(&self, values: MatRef<'_, f64>, x: &[f64], nyquist_factor: f64) -> Mat<f64> {
         let n = self.len();
         let ncols = values.ncols();
-        // Spectra of every column, scaled by 1/n.
-        let spectra: Vec<Vec<Complex64>> = (0..ncols)
-            .map(|j| {
-                let mut buf: Vec<Complex64> = (0..n).map(|i| Complex64::new(values[(i, j)], 0.0)).collect();
-                self.forward.process(&mut buf);
-                buf.iter_mut().for_each(|z| *z /= n as f64);
-                buf
-            })
-            .collect();
+        let half = (n - 1) / 2; // positive non-Nyquist modes 1..=half
+        let mut scratch = vec![Complex64::new(0.0, 0.0); self.forward.get_inplace_scratch_len()];
+        let mut buf = vec![Complex64::new(0.0, 0.0); n];
+        let mut modes: Vec<Vec<Complex64>> = Vec::with_capacity(ncols);
+        let mut nyq: Vec<f64> = Vec::with_capacity(ncols);
+        for j in 0..ncols {
+            for (i, b) in buf.iter_mut().enumerate() {
+                *b = Complex64::new(values[(i, j)], 0.0);
+            }
+            self.forward.process_with_scratch(&mut buf, &mut scratch);
+            modes.push(buf[..=half].iter().map(|z| z / n as f64).collect());
+            nyq.push(if self.has_nyquist() { nyquist_factor * buf[n / 2].re / n as f64 } else { 0.0 });
+        }
         let length = self.stop - self.start;
-        let nyq = if self.has_nyquist() { Some(n / 2) } else { None };
         let rows: Vec<Vec<f64>> = x
             .par_iter()
             .map(|&xi| {
                 let theta = 2.0 * PI * (xi - self.start) / length;
-                // e^{i k_p (x − start)} for p in numpy order: p < n/2 positive, p ≥ n/2 negative.
-                let mut out = vec![0.0; ncols];
-                for p in 0..n {
-                    let m = if p <= n / 2 { p as f64 } else { p as f64 - n as f64 };
-                    let (s, c) = (m * theta).sin_cos();
-                    for (j, spec) in spectra.iter().enumerate() {
-                        let z = spec[p];
-                        out[j] += if Some(p) == nyq { z.re * (n as f64 / 2.0 * theta).cos() } else { z.re * c - z.im * s };
+                let mut out: Vec<f64> = modes.iter().map(|a| a[0].re).collect();
+                let (s1, c1) = theta.sin_cos();
+                let step = Complex64::new(c1, s1);
+                let mut e = Complex64::new(1.0, 0.0);
+                for m in 1..=half {
+                    if m % 32 == 0 {
+                        let (sm, cm) = (m as f64 * theta).sin_cos();
+                        e = Complex64::new(cm, sm);
+                    } else {
+                        e *= step;
+                    }
+                    for (o, a) in out.iter_mut().zip(&modes) {
+                        // a_m e^{imθ} + conj(a_m) e^{−imθ} = 2 Re(a_m e^{imθ})
+                        *o += 2.0 * (a[m].re * e.re - a[m].im * e.im);
+                    }
+                }
+                if self.has_nyquist() {
+                    let cn = (0.5 * n as f64 * theta).cos();
+                    for (o, &b) in out.iter_mut().zip(&nyq) {
+                        *o += b * cn;
                     }
                 }
                 out
@@ -205,6 +231,12 @@ impl FourierGrid {
             .collect();
         Mat::from_fn(x.len(), ncols, |i, j| rows[i][j])
     }
+}
+
+/// k_p = 2π·fftfreq(n, dx)[p], numpy order (for even n the Nyquist mode p = n/2 has
+/// k = −π/dx). The one `fftfreq` of the crate.
+pub fn wavenumbers(n: usize, dx: f64) -> Vec<f64> {
+    (0..n).map(|p| wavenumber(p, n, dx)).collect()
 }
 
 /// k_p = 2π·fftfreq(n, dx)[p].

@@ -1,21 +1,28 @@
-//! Eigenstates of a [`Hamiltonian`]: full dense diagonalisation or, for the
-//! lowest states of large grids, a matrix-free block iteration.
+//! Eigenstates of a [`Hamiltonian`]: the method choice, the dense and the matrix-free
+//! paths, the sign convention (applied once, by the basis) and the [`Spectrum`].
+//!
+//! The choice reads properties of the problem ([`DiscreteProblem::structure`], its
+//! size and the number of states), never the basis type.
 
-pub mod dense;
 pub mod iterative;
-pub mod matrix_free;
-pub mod subset;
 
 use crate::basis::{fix_signs, BasisRef};
-use crate::error::{InputError, Result};
-use crate::hamiltonian::{Hamiltonian, Kinetic, Mass};
-use crate::units::Units;
+use crate::error::{check_memory, InputError, Result};
+use crate::linalg::dense::{lowest_of_blocks, lowest_of_matrix, par_for_dim};
+use crate::linalg::{column_major, generalized};
+use crate::model::units::Units;
+use crate::problem::{DiscreteProblem, Hamiltonian, Mass};
 use faer::Mat;
+use std::sync::Arc;
+
+/// Dense is used up to this size; above it, `method="auto"` goes matrix-free on
+/// problems with a fast (FFT) product when `count` is small (see [`auto_choice`]).
+pub const AUTO_DENSE_MAX: usize = 512;
 
 /// How to diagonalise. Parsed from a string only at the Python edge.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Method {
-    /// Dense for small problems, iterative for large grids (see [`Method::resolve`]).
+    /// Dense for small problems, iterative for large grids (see [`auto_choice`]).
     Auto,
     /// Full dense symmetric eigensolver (faer), O(N³) time, O(N²) memory.
     Dense,
@@ -36,12 +43,26 @@ impl Method {
         crate::error::choice_name(&Self::TABLE, self)
     }
 
-    /// The concrete method `Auto` picks for `h` and `count`.
-    pub fn resolve(self, h: &Hamiltonian, count: usize) -> Method {
+    /// The concrete method `Auto` picks for `p` and `count`.
+    pub fn resolve(self, p: &dyn DiscreteProblem, count: usize) -> Method {
         match self {
-            Method::Auto => matrix_free::auto_choice(h, count),
+            Method::Auto => auto_choice(p, count),
             m => m,
         }
+    }
+}
+
+/// The rule of `method="auto"`: matrix-free LOBPCG when the problem has a fast
+/// (FFT) product, more than [`AUTO_DENSE_MAX`] functions and at most a quarter of
+/// the spectrum is wanted; dense otherwise. Measured (10 states, quartic well): dense
+/// 3/15/80/220 ms at N = 256/512/1024/1536, iterative 0.7/0.9/1.3/2.1 ms; on rough
+/// potentials (steps) iterative and dense cost about the same at 513 points.
+pub fn auto_choice(p: &dyn DiscreteProblem, count: usize) -> Method {
+    let n = p.dim();
+    if p.structure().fast_apply && n > AUTO_DENSE_MAX && 4 * count <= n {
+        Method::Iterative
+    } else {
+        Method::Dense
     }
 }
 
@@ -68,17 +89,14 @@ impl SolveOptions {
 
 /// The lowest eigenpairs of a Hamiltonian.
 ///
-/// * `energies` ascending, in the energy unit of `units`;
-/// * `vectors` (N × count): orthonormal coefficient vectors in the basis; the sign of
-///   each is fixed by [`fix_signs`] (positive in the leftmost region where |ψ| exceeds
-///   1 % of its maximum);
-/// * `residuals`: ‖Hψ − Eψ‖ (coefficient 2-norm, ‖ψ‖ = 1), energy units.
+/// * `energies` ascending, in the energy unit of the Hamiltonian's units;
+/// * `vectors` (N × count): orthonormal (B-orthonormal for heterostructures)
+///   coefficient vectors in the basis; the sign of each is fixed by [`fix_signs`]
+///   (positive in the leftmost region where |ψ| exceeds 1 % of its maximum);
+/// * `residuals`: ‖Hψ − EBψ‖ (coefficient 2-norm), energy units.
 #[derive(Debug, Clone)]
 pub struct Spectrum {
-    pub basis: BasisRef,
-    pub units: Units,
-    pub mass: Mass,
-    pub kinetic: Kinetic,
+    pub hamiltonian: Arc<Hamiltonian>,
     pub energies: Vec<f64>,
     pub vectors: Mat<f64>,
     pub residuals: Vec<f64>,
@@ -87,12 +105,49 @@ pub struct Spectrum {
 }
 
 impl Spectrum {
+    /// A spectrum from stored parts (e.g. a file), validated: `vectors` N × count with
+    /// N the Hamiltonian's dimension, as many finite energies and residuals as vectors.
+    pub fn from_parts(
+        hamiltonian: Arc<Hamiltonian>,
+        energies: Vec<f64>,
+        vectors: Mat<f64>,
+        residuals: Vec<f64>,
+        method: Method,
+        iterations: usize,
+    ) -> std::result::Result<Self, InputError> {
+        let n = hamiltonian.size();
+        let k = energies.len();
+        if k == 0 || vectors.ncols() != k || vectors.nrows() != n {
+            return Err(InputError::range(
+                "vectors",
+                format!("an array of shape ({k}, {n}) (one row per energy, one column per basis function), k >= 1"),
+                format!("({}, {})", vectors.ncols(), vectors.nrows()),
+            ));
+        }
+        if residuals.len() != k {
+            return Err(InputError::Length { argument: "residuals".into(), expected: k, got: residuals.len() });
+        }
+        crate::error::check_finite("energies", &energies)?;
+        crate::error::check_finite("residuals", &residuals)?;
+        crate::error::check_finite("vectors", &column_major(&vectors))?;
+        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations })
+    }
+
     pub fn count(&self) -> usize {
         self.energies.len()
     }
+    pub fn basis(&self) -> &BasisRef {
+        self.hamiltonian.basis()
+    }
+    pub fn units(&self) -> Units {
+        self.hamiltonian.units()
+    }
+    pub fn mass(&self) -> &Mass {
+        self.hamiltonian.mass()
+    }
     /// ψ_n(x_i) for all states, `x.len() × count`, normalised ∫|ψ|² dx = 1.
     pub fn wavefunctions(&self, x: &[f64]) -> std::result::Result<Mat<f64>, InputError> {
-        self.basis.as_dyn().evaluate(self.vectors.as_ref(), x)
+        self.basis().as_dyn().evaluate(self.vectors.as_ref(), x)
     }
 }
 
@@ -112,75 +167,85 @@ pub fn check_tol(tol: f64) -> std::result::Result<(), InputError> {
     Ok(())
 }
 
-/// The columns of `m` laid end to end (the column-major block layout of the
-/// matrix-free operators and of warm starts).
-pub fn column_major(m: &Mat<f64>) -> Vec<f64> {
-    (0..m.ncols()).flat_map(|j| (0..m.nrows()).map(move |i| m[(i, j)])).collect()
-}
-
-/// Residual norms ‖H v_j − E_j B v_j‖ of the columns of `vectors` (B = I except for
-/// heterostructures).
-pub fn residuals(h: &Hamiltonian, energies: &[f64], vectors: &Mat<f64>) -> Vec<f64> {
+/// Residual norms ‖A v_j − E_j B v_j‖ of the columns of `vectors`.
+pub fn residuals(p: &dyn DiscreteProblem, energies: &[f64], vectors: &Mat<f64>) -> Vec<f64> {
     let n = vectors.nrows();
     let k = vectors.ncols();
     let x = column_major(vectors);
     let mut y = vec![0.0; n * k];
-    h.apply_block(&x, &mut y, k);
+    p.apply_a(&x, &mut y, k);
     let mut bx = vec![0.0; n * k];
-    h.apply_overlap_block(&x, &mut bx, k);
+    p.apply_b(&x, &mut bx, k);
     (0..k)
-        .map(|j| {
-            (0..n)
-                .map(|i| {
-                    let r = y[j * n + i] - energies[j] * bx[j * n + i];
-                    r * r
-                })
-                .sum::<f64>()
-                .sqrt()
-        })
+        .map(|j| (0..n).map(|i| (y[j * n + i] - energies[j] * bx[j * n + i]).powi(2)).sum::<f64>().sqrt())
         .collect()
 }
 
+/// Lowest `count` eigenpairs of a problem from its dense matrices: the generalized
+/// reduction when B ≠ I, the symmetry blocks when the problem has them, the subset or
+/// full dense solver otherwise. Refuses up front (before allocating) when the
+/// matrices would not fit in memory.
+pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Result<(Vec<f64>, Mat<f64>)> {
+    let n = p.dim() as u64;
+    let generalized = p.structure().generalized;
+    // Matrix, eigenvectors and workspace: about three N×N arrays (five with B).
+    check_memory(
+        "method",
+        (if generalized { 5 } else { 3 }) * n * n * 8,
+        "the dense path needs about three N×N float64 arrays (five for a heterostructure); use method=\"iterative\" for the lowest states of a large grid",
+    )?;
+    let par = par_for_dim(p.dim(), par);
+    if generalized {
+        let b = p.dense_b().ok_or_else(|| crate::error::NumericalError::EigenFailed("generalized problem without B".into()))?;
+        return generalized::lowest_generalized(p.dense_a(), b.as_ref(), count, par);
+    }
+    if let Some(sym) = p.symmetry_blocks() {
+        let pairs = lowest_of_blocks(&sym.blocks, count, par)?;
+        let mut vectors = Mat::<f64>::zeros(p.dim(), pairs.len());
+        for (j, (_, block, v)) in pairs.iter().enumerate() {
+            for (&row, x) in sym.indices[*block].iter().zip(v) {
+                vectors[(row, j)] = *x;
+            }
+        }
+        return Ok((pairs.into_iter().map(|p| p.0).collect(), vectors));
+    }
+    lowest_of_matrix(p.dense_a().as_ref(), count, par)
+}
+
 /// Lowest `opts.count` eigenpairs of `h`.
-pub fn solve(h: &Hamiltonian, opts: &SolveOptions) -> Result<Spectrum> {
+pub fn solve(h: &Arc<Hamiltonian>, opts: &SolveOptions) -> Result<Spectrum> {
     solve_with_par(h, opts, faer::get_global_parallelism())
 }
 
 /// [`solve`] with explicit parallelism for the dense kernels (`Par::Seq` inside
 /// an outer parallel loop such as [`solve_batch`]).
-pub fn solve_with_par(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
+pub fn solve_with_par(h: &Arc<Hamiltonian>, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
     solve_keeping_guards(h, opts, par).map(|(s, _)| s)
 }
 
 /// [`solve_with_par`], also returning the iterative path's guard vectors
 /// (column-major; empty on the dense path) for warm-starting a nearby problem.
-fn solve_keeping_guards(h: &Hamiltonian, opts: &SolveOptions, par: faer::Par) -> Result<(Spectrum, Vec<f64>)> {
-    check_count(opts.count, h.size())?;
+fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, par: faer::Par) -> Result<(Spectrum, Vec<f64>)> {
+    let p = h.problem();
+    check_count(opts.count, p.dim())?;
     check_tol(opts.tol)?;
     if let Some(init) = &opts.initial {
         crate::error::check_finite("initial", init)?;
     }
-    let method = opts.method.resolve(h, opts.count);
+    let method = opts.method.resolve(p, opts.count);
     let (energies, mut vectors, iterations, guards) = match method {
         Method::Dense | Method::Auto => {
-            let (e, v) = dense::lowest(h, opts.count, par)?;
+            let (e, v) = dense_lowest(p, opts.count, par)?;
             (e, v, 0, Vec::new())
         }
-        Method::Iterative => matrix_free::solve_hamiltonian(h, opts).map_err(absolute_residuals)?,
+        Method::Iterative => {
+            let s = iterative::solve(p, opts).map_err(absolute_residuals)?;
+            (s.energies, s.vectors, s.iterations, s.guards)
+        }
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
-    let residuals = residuals(h, &energies, &vectors);
-    let spectrum = Spectrum {
-        basis: h.basis().clone(),
-        units: h.units(),
-        mass: h.mass().clone(),
-        kinetic: h.kinetic().clone(),
-        energies,
-        vectors,
-        residuals,
-        method,
-        iterations,
-    };
+    let residuals = residuals(p, &energies, &vectors);
+    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations };
     Ok((spectrum, guards))
 }
 
@@ -202,10 +267,10 @@ pub fn solve_batch(
     if potentials.is_empty() {
         return Err(InputError::range("potentials", "at least one potential", "none").into());
     }
-    let build = |v: &Vec<f64>| Hamiltonian::new(basis.clone(), v.clone(), mass.clone(), units);
+    let build = |v: &Vec<f64>| Hamiltonian::new(basis.clone(), v.clone(), mass.clone(), units).map(Arc::new);
     let first = build(&potentials[0])?;
     check_count(opts.count, first.size())?;
-    let method = opts.method.resolve(&first, opts.count);
+    let method = opts.method.resolve(first.problem(), opts.count);
     let mut o = opts.clone();
     o.method = method;
     match method {

@@ -174,6 +174,6 @@ pub fn basis_to_py(py: Python<'_>, b: &BasisRef) -> PyResult<Py<PyAny>> {
         BasisRef::Hermite(h) => Py::new(py, PyHermiteBasis { inner: h.clone() })?.into_any(),
         BasisRef::Fourier(g) => Py::new(py, PyFourierGrid { inner: g.clone() })?.into_any(),
         // A heterostructure's basis is presented as the grid (box and size) it was built on.
-        BasisRef::Layered(l) => Py::new(py, PyFourierGrid { inner: Arc::new(l.problem().grid().clone()) })?.into_any(),
+        BasisRef::Layered(l) => Py::new(py, PyFourierGrid { inner: Arc::new(l.grid().clone()) })?.into_any(),
     })
 }

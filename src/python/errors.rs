@@ -8,7 +8,7 @@ pyo3::create_exception!(
     _core,
     ConvergenceError,
     PyRuntimeError,
-    "An iterative method missed its tolerance. Attributes: `energies` and `residuals` (best estimates), `iterations`."
+    "An iterative method missed its tolerance. Attributes: `energies` (best estimates), `iterations`, and `residuals` (eigensolvers) or `rates` |dE/dτ| (imaginary-time relaxation)."
 );
 
 /// Convert a core error into the Python exception the public contract promises.
@@ -23,6 +23,14 @@ pub fn to_py(py: Python<'_>, e: Error) -> PyErr {
             let _ = value.setattr("energies", energies.clone());
             let _ = value.setattr("residuals", residuals.clone());
             let _ = value.setattr("iterations", iterations);
+            err
+        }
+        Error::Numerical(NumericalError::NotSettled { steps, ref energies, ref rates, .. }) => {
+            let err = ConvergenceError::new_err(e.to_string());
+            let value = err.value(py);
+            let _ = value.setattr("energies", energies.clone());
+            let _ = value.setattr("rates", rates.clone());
+            let _ = value.setattr("iterations", steps);
             err
         }
         Error::Numerical(n) => PyRuntimeError::new_err(n.to_string()),

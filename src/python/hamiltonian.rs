@@ -6,12 +6,12 @@ use super::errors::IntoPyResult;
 use crate::basis::BasisRef;
 use crate::eigen::{self, Method, SolveOptions, Spectrum};
 use crate::error::check_memory;
-use crate::hamiltonian::{Hamiltonian, Kinetic, Mass};
-use crate::heterostructure::Heterostructure;
+use crate::problem::{Hamiltonian, Mass};
+use crate::model::stack::Heterostructure;
 use super::layers::PyHeterostructure;
 use pyo3::exceptions::PyTypeError;
 use crate::observables;
-use crate::units::Units;
+use crate::model::units::Units;
 use numpy::{PyArray1, PyArray2};
 use num_complex::Complex64;
 use super::display::{key_value_table, table, unit_suffix};
@@ -26,12 +26,11 @@ pub fn potential_samples(obj: &Bound<'_, PyAny>, basis: &BasisRef, name: &str) -
         let x = PyArray1::from_slice(obj.py(), points);
         // An exception raised by the user's callable propagates with its own type,
         // plus a note (Python ≥ 3.11) saying which argument was being evaluated.
-        let values = obj.call1((x,)).map_err(|e| {
+        let values = obj.call1((x,)).inspect_err(|e| {
             let _ = e.value(obj.py()).call_method1(
                 "add_note",
                 (format!("raised while evaluating `{name}` at the basis points (a float64 array)"),),
             );
-            e
         })?;
         // A callable returning a scalar (e.g. lambda x: 0.0) means a constant potential.
         if let Ok(c) = values.extract::<f64>() {
@@ -159,6 +158,20 @@ impl PyHamiltonian {
     fn units(&self) -> &'static str {
         self.inner.units().name()
     }
+    /// The mass as given: a float, or an array on the grid points (for a
+    /// heterostructure, the layer masses at the basis nodes).
+    #[getter]
+    fn mass(&self, py: Python<'_>) -> Py<PyAny> {
+        mass_to_py(py, self.inner.mass())
+    }
+    /// The Heterostructure of a layered Hamiltonian (None for the other bases).
+    #[getter]
+    fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
+        match self.inner.basis() {
+            BasisRef::Layered(l) => Ok(Some(stack_to_py(py, l)?)),
+            _ => Ok(None),
+        }
+    }
     #[getter]
     fn size(&self) -> usize {
         self.inner.size()
@@ -203,7 +216,7 @@ impl PyHamiltonian {
 
 /// The Heterostructure behind a layered basis, as a Python object.
 fn stack_to_py(py: Python<'_>, l: &crate::basis::LayeredBasis) -> PyResult<Py<PyHeterostructure>> {
-    Py::new(py, PyHeterostructure { inner: Arc::new(l.problem().stack().clone()) })
+    Py::new(py, PyHeterostructure { inner: Arc::new(l.stack().clone()) })
 }
 
 fn mass_text(m: &Mass) -> String {
@@ -223,60 +236,24 @@ fn mass_to_py(py: Python<'_>, m: &Mass) -> Py<PyAny> {
     }
 }
 
-/// Rebuild a Spectrum from its parts (the target of `Spectrum.__reduce__` and `specwell.load`).
+/// Rebuild a Spectrum from its Hamiltonian and arrays (the target of
+/// `Spectrum.__reduce__` and `specwell.load`); the parts are validated by the core.
 #[pyfunction]
-#[allow(clippy::too_many_arguments)]
 pub fn _spectrum_from_parts(
     py: Python<'_>,
-    basis: &Bound<'_, PyAny>,
-    units: &str,
-    mass: &Bound<'_, PyAny>,
+    hamiltonian: &Bound<'_, PyHamiltonian>,
     energies: &Bound<'_, PyAny>,
     vectors: &Bound<'_, PyAny>,
     residuals: &Bound<'_, PyAny>,
     method: &str,
     iterations: usize,
 ) -> PyResult<PySpectrum> {
-    let units = Units::parse(units).py(py)?;
-    // A (grid, Heterostructure) pair stands for a heterostructure's basis.
-    let (b, mass) = match basis.extract::<(Bound<'_, PyAny>, Bound<'_, PyAny>)>() {
-        Ok((grid, stack)) => {
-            let stack = stack.cast::<PyHeterostructure>().map_err(|_| PyTypeError::new_err("`basis` pair must be (FourierGrid, Heterostructure)"))?;
-            let h = layered_hamiltonian(py, &extract_basis(&grid, "basis")?, &stack.get().inner, None, units)?;
-            (h.inner.basis().clone(), h.inner.mass().clone())
-        }
-        Err(_) => {
-            let b = extract_basis(basis, "basis")?;
-            let m = extract_mass(mass, &b)?;
-            (b, m)
-        }
-    };
-    let n = b.as_dyn().size();
     let energies = vec_f64(energies, "energies", None)?;
-    let residuals = vec_f64(residuals, "residuals", Some(energies.len()))?;
-    let (count, cols, data) = super::arrays::mat_f64(vectors, "vectors")?;
-    if count != energies.len() || cols != n {
-        return Err(pyo3::exceptions::PyValueError::new_err(format!(
-            "`vectors` must have shape ({}, {n}); got ({count}, {cols})",
-            energies.len()
-        )));
-    }
+    let residuals = vec_f64(residuals, "residuals", None)?;
+    let (count, n, data) = super::arrays::mat_f64(vectors, "vectors")?;
     let method = Method::parse(method).py(py)?;
-    let kinetic = match &mass {
-        Mass::Uniform(m) => Kinetic::Uniform(units.kinetic_prefactor(*m)),
-        Mass::Profile(ms) => Kinetic::Profile(ms.iter().map(|&m| units.kinetic_prefactor(m)).collect()),
-    };
-    let s = Spectrum {
-        basis: b,
-        units,
-        mass,
-        kinetic,
-        energies,
-        vectors: faer::Mat::from_fn(n, count, |i, j| data[j * n + i]),
-        residuals,
-        method,
-        iterations,
-    };
+    let v = crate::linalg::from_column_major(&data, n, count);
+    let s = Spectrum::from_parts(hamiltonian.get().inner.clone(), energies, v, residuals, method, iterations).py(py)?;
     Ok(PySpectrum { inner: Arc::new(s) })
 }
 
@@ -312,7 +289,7 @@ fn initial_block(obj: &Bound<'_, PyAny>, n: usize) -> PyResult<Vec<f64>> {
                 v.nrows()
             )));
         }
-        return Ok(crate::eigen::column_major(v));
+        return Ok(crate::linalg::column_major(v));
     }
     let (r, c, data) = super::arrays::mat_f64(obj, "initial")?;
     if c != n || r == 0 {
@@ -349,7 +326,7 @@ impl PySpectrum {
     /// The basis' own sample points (grid points or quadrature nodes).
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        PyArray1::from_slice(py, self.inner.basis.as_dyn().points())
+        PyArray1::from_slice(py, self.inner.basis().as_dyn().points())
     }
     #[getter]
     fn count(&self) -> usize {
@@ -358,15 +335,15 @@ impl PySpectrum {
     /// The Heterostructure of a layered spectrum (None for the other bases).
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
-        match &self.inner.basis {
+        match &self.inner.basis() {
             BasisRef::Layered(l) => Ok(Some(stack_to_py(py, l)?)),
             _ => Ok(None),
         }
     }
-    /// The mass as given to the Hamiltonian (float or grid array); used by `specwell.save`.
+    /// The Hamiltonian whose eigenpairs these are.
     #[getter]
-    fn _mass(&self, py: Python<'_>) -> Py<PyAny> {
-        mass_to_py(py, &self.inner.mass)
+    fn hamiltonian(&self) -> PyHamiltonian {
+        PyHamiltonian { inner: self.inner.hamiltonian.clone() }
     }
     /// Broadened absorption from state `initial`: Σ_f f_if·L(E − (E_f − E_i)), shape (len(energies),).
     #[pyo3(signature = (energies, broadening, shape="lorentzian", initial=0))]
@@ -387,7 +364,7 @@ impl PySpectrum {
     /// the trapezoid rule on `points` uniform points spanning the basis' own points.
     #[pyo3(signature = (g=None, points=8192))]
     fn expectation<'py>(&self, py: Python<'py>, g: Option<&Bound<'py, PyAny>>, points: usize) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pts = self.inner.basis.as_dyn().points();
+        let pts = self.inner.basis().as_dyn().points();
         let (lo, hi) = pts.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
         if points < 16 {
             return Err(pyo3::exceptions::PyValueError::new_err(format!("`points` must be an integer >= 16; got {points}")));
@@ -406,11 +383,6 @@ impl PySpectrum {
         let out = py.detach(move || observables::expectation(&s, &xs, &gv)).py(py)?;
         Ok(PyArray1::from_vec(py, out))
     }
-    /// Save to a `.npz` file (see `specwell.save`).
-    fn save(slf: &Bound<'_, Self>, path: &Bound<'_, PyAny>) -> PyResult<()> {
-        slf.py().import("specwell.io")?.call_method1("save", (slf, path))?;
-        Ok(())
-    }
     #[getter]
     fn method(&self) -> &'static str {
         self.inner.method.name()
@@ -421,17 +393,17 @@ impl PySpectrum {
     }
     #[getter]
     fn units(&self) -> &'static str {
-        self.inner.units.name()
+        self.inner.units().name()
     }
     #[getter]
     fn basis(&self, py: Python<'_>) -> PyResult<Py<PyAny>> {
-        basis_to_py(py, &self.inner.basis)
+        basis_to_py(py, self.inner.basis())
     }
     /// ψ_n(x) for every state, shape (count, len(x)); x=None: the basis' own points.
     #[pyo3(signature = (x=None))]
     fn wavefunctions<'py>(&self, py: Python<'py>, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let xs = match x {
-            None => self.inner.basis.as_dyn().points().to_vec(),
+            None => self.inner.basis().as_dyn().points().to_vec(),
             Some(obj) => {
                 let v = vec_f64(obj, "x", None)?;
                 crate::error::check_finite("x", &v).py(py)?;
@@ -459,19 +431,10 @@ impl PySpectrum {
         let py = slf.py();
         let s = &slf.get().inner;
         let rebuild = py.import("specwell._core")?.getattr("_spectrum_from_parts")?;
-        let basis = match &s.basis {
-            BasisRef::Layered(l) => {
-                let stack = stack_to_py(py, l)?.into_any();
-                PyTuple::new(py, [basis_to_py(py, &s.basis)?, stack])?.into_any().unbind()
-            }
-            _ => basis_to_py(py, &s.basis)?,
-        };
         let args = PyTuple::new(
             py,
             [
-                basis,
-                s.units.name().into_pyobject(py)?.into_any().unbind(),
-                mass_to_py(py, &s.mass),
+                Py::new(py, PyHamiltonian { inner: s.hamiltonian.clone() })?.into_any(),
                 PyArray1::from_slice(py, &s.energies).into_any().unbind(),
                 mat_t_to_py(py, s.vectors.as_ref()).into_any().unbind(),
                 PyArray1::from_slice(py, &s.residuals).into_any().unbind(),
@@ -483,7 +446,7 @@ impl PySpectrum {
     }
     fn _repr_html_(&self) -> String {
         let s = &self.inner;
-        let sym = s.units.symbols();
+        let sym = s.units().symbols();
         let eu = unit_suffix(sym[1]);
         let header = vec!["n".to_string(), format!("E{eu}"), format!("E − E₀{eu}"), format!("residual{eu}")];
         let e0 = s.energies.first().cloned().unwrap_or(0.0);
@@ -494,11 +457,11 @@ impl PySpectrum {
             .enumerate()
             .map(|(n, (e, r))| vec![n.to_string(), format!("{e:.10}"), format!("{:.10}", e - e0), format!("{r:.1e}")])
             .collect();
-        let title = format!("Spectrum: {} states, {} method, {}", s.count(), s.method.name(), s.basis.as_dyn().describe());
+        let title = format!("Spectrum: {} states, {} method, {}", s.count(), s.method.name(), s.basis().as_dyn().describe());
         table(&title, &header, &rows, 50)
     }
     fn __repr__(&self) -> String {
-        let unit = self.inner.units.symbols()[1];
+        let unit = self.inner.units().symbols()[1];
         let e: Vec<String> = self.inner.energies.iter().take(6).map(|e| format!("{e:.10}")).collect();
         let more = if self.inner.count() > 6 { ", …" } else { "" };
         format!("Spectrum(count={}, energies=[{}{}] {unit}, method={:?})", self.inner.count(), e.join(", "), more, self.inner.method.name())
@@ -514,17 +477,17 @@ pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py,
         return Err(pyo3::exceptions::PyValueError::new_err(format!("`a` must be a non-empty square matrix; got shape ({r}, {c})")));
     }
     crate::error::check_finite("a", &data).py(py)?;
-    if let Some(i) = data.iter().position(|v| v.abs() > crate::hamiltonian::MAX_ABS_POTENTIAL) {
+    if let Some(i) = data.iter().position(|v| v.abs() > crate::problem::hamiltonian::MAX_ABS_POTENTIAL) {
         return Err(pyo3::exceptions::PyValueError::new_err(format!(
             "`a` entries must satisfy |a| <= {:e} (larger values overflow the eigensolver); got {:e} at flat index {i}",
-            crate::hamiltonian::MAX_ABS_POTENTIAL,
+            crate::problem::hamiltonian::MAX_ABS_POTENTIAL,
             data[i]
         )));
     }
     let (vals, vecs) = py
         .detach(move || {
             // Row-major data viewed in place (only the lower triangle is read).
-            crate::eigen::dense::eigh(faer::MatRef::from_row_major_slice(&data, r, r), faer::get_global_parallelism())
+            crate::linalg::dense::eigh(faer::MatRef::from_row_major_slice(&data, r, r), faer::get_global_parallelism())
         })
         .py(py)?;
     Ok((PyArray1::from_vec(py, vals), mat_to_py(py, vecs.as_ref())))
@@ -599,7 +562,6 @@ pub fn _batch_from_spectra(spectra: Vec<PyRef<'_, PySpectrum>>) -> PyBatch {
 /// Solve many potentials on one basis in parallel (rayon, GIL released).
 #[pyfunction]
 #[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10))]
-#[allow(clippy::too_many_arguments)]
 pub fn solve_batch(
     py: Python<'_>,
     basis: &Bound<'_, PyAny>,

@@ -3,7 +3,7 @@
 use super::arrays::vec_f64;
 use super::display::table;
 use super::errors::IntoPyResult;
-use crate::heterostructure::{Heterostructure, Layer};
+use crate::model::stack::{Heterostructure, Layer};
 use numpy::PyArray1;
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
@@ -66,14 +66,14 @@ impl PyHeterostructure {
             let l = item.cast::<PyLayer>().map_err(|_| {
                 PyTypeError::new_err(format!("`layers[{i}]` must be a specwell.Layer; got {}", item.get_type().name().map(|n| n.to_string()).unwrap_or_default()))
             })?;
-            out.push(l.get().inner.clone());
+            out.push(l.get().inner);
         }
         let h = Heterostructure::new(out, field_kv_cm).py(py)?;
         Ok(PyHeterostructure { inner: Arc::new(h) })
     }
     #[getter]
     fn layers<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
-        PyList::new(py, self.inner.layers().iter().map(|l| PyLayer { inner: l.clone() }))
+        PyList::new(py, self.inner.layers().iter().map(|l| PyLayer { inner: *l }))
     }
     #[getter]
     fn field_kv_cm(&self) -> f64 {

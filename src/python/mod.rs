@@ -1,6 +1,9 @@
 //! The pyo3 layer: borrow arrays, call the core, convert results and errors.
 //! Nothing here does numerics; option strings are parsed once, here.
 
+// pyo3 signatures mirror the Python API: many arguments, nested return tuples.
+#![allow(clippy::too_many_arguments, clippy::type_complexity)]
+
 mod arrays;
 mod basis;
 mod display;
@@ -32,7 +35,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_spectrum_from_parts, m)?)?;
     m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
-    m.add("UNITS", crate::error::choice_names(&crate::units::Units::TABLE))?;
+    m.add("UNITS", crate::error::choice_names(&crate::model::units::Units::TABLE))?;
     m.add("METHODS", crate::error::choice_names(&crate::eigen::Method::TABLE))?;
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     Ok(())
@@ -41,6 +44,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
 /// (ħ²/2m_e, ħ) of a unit system: energy·length² and energy·time.
 #[pyfunction]
 fn unit_constants(units: &str) -> PyResult<(f64, f64)> {
-    let u = crate::units::Units::parse(units).map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
+    let u = crate::model::units::Units::parse(units).map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;
     Ok((u.hbar2_over_2me(), u.hbar()))
 }

@@ -5,8 +5,8 @@ use super::basis::PyFourierGrid;
 use super::errors::IntoPyResult;
 use super::hamiltonian::potential_samples;
 use crate::basis::BasisRef;
-use crate::propagate::{Absorber, Drive, DriveSampling, Run, SplitOrder, SplitStep, SplitStepConfig};
-use crate::units::Units;
+use crate::propagate::{DriveSampling, Run, SplitOrder, SplitStep, SplitStepOptions};
+use crate::model::units::Units;
 use num_complex::Complex64;
 use numpy::{PyArray1, PyArray2};
 use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyValueError};
@@ -19,41 +19,33 @@ use std::sync::Arc;
 pub struct PySplitStep {
     core: Arc<SplitStep>,
     grid: Py<PyFourierGrid>,
-    units: Units,
-    mass: f64,
-    potential: Vec<f64>,
     /// f(t): a callable (evaluated at the sub-step times of each run) or per-step samples.
     drive: Option<Py<PyAny>>,
-    drive_potential: Option<Vec<f64>>,
-    absorber_width: Option<f64>,
-    absorber_potential: Option<Vec<f64>>,
-    order: usize,
-    dt: f64,
-    imaginary_time: bool,
 }
 
-fn parse_order(order: &Bound<'_, PyAny>) -> PyResult<SplitOrder> {
-    match to_usize(order, "order", 2, 4) {
-        Ok(2) => Ok(SplitOrder::Second),
-        Ok(4) => Ok(SplitOrder::Fourth),
-        _ => Err(PyValueError::new_err(format!(
-            "`order` must be one of 2 (Strang) or 4 (Yoshida composition); got {}",
-            order.str().map(|s| s.to_string()).unwrap_or_default()
-        ))),
+/// A single mass for SplitStep: a number (a position-dependent mass does not split
+/// exactly into kinetic and potential steps).
+fn scalar_mass(m: &Bound<'_, PyAny>) -> PyResult<f64> {
+    if let Ok(v) = m.extract::<f64>() {
+        return Ok(v);
     }
+    Err(PyTypeError::new_err(format!(
+        "`mass` must be a single positive number for SplitStep (a position-dependent mass does not split exactly into kinetic and potential steps; use Hamiltonian(grid, V, mass=array) for its eigenstates); got {}",
+        m.get_type().name().map(|n| n.to_string()).unwrap_or_default()
+    )))
 }
 
 #[pymethods]
 impl PySplitStep {
     #[new]
-    #[pyo3(signature = (grid, potential, mass=1.0, dt=None, order=None, units="natural", *, drive=None,
-                        drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=false))]
-    #[allow(clippy::too_many_arguments)]
-    fn new(
+    #[pyo3(signature = (grid, potential, mass=None, dt=None, order=None, units="natural", *, drive=None,
+                        drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=false),
+           text_signature = "(grid, potential, mass=1.0, dt=None, order=None, units='natural', *, drive=None, drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=False)")]
+        fn new(
         py: Python<'_>,
         grid: &Bound<'_, PyAny>,
         potential: &Bound<'_, PyAny>,
-        mass: f64,
+        mass: Option<&Bound<'_, PyAny>>,
         dt: Option<f64>,
         order: Option<&Bound<'_, PyAny>>,
         units: &str,
@@ -69,62 +61,25 @@ impl PySplitStep {
             .map_err(|_| PyTypeError::new_err("`grid` must be a specwell.FourierGrid (split-step needs a periodic grid)"))?;
         let gref = BasisRef::Fourier(g.get().inner.clone());
         let dt = dt.ok_or_else(|| PyTypeError::new_err("`dt` is required: the time step (time units; > 0 for imaginary time)"))?;
-        let order_enum = match order {
-            None => SplitOrder::Second,
-            Some(o) => parse_order(o)?,
+        let mut o = SplitStepOptions::new(g.get().inner.clone(), potential_samples(potential, &gref, "potential")?, dt);
+        o.units = units;
+        o.mass = match mass {
+            None => 1.0,
+            Some(m) => scalar_mass(m)?,
         };
-        crate::error::check_positive("mass", mass).py(py)?;
-        let v = potential_samples(potential, &gref, "potential")?;
-        let gi = &g.get().inner;
-        let mut cfg = SplitStepConfig::new(gi.start(), gi.dx(), gi.len(), v.clone(), units.kinetic_prefactor(mass), units.hbar(), dt);
-        cfg.order = order_enum;
-        cfg.imaginary_time = imaginary_time;
-        let dpot = drive_potential.map(|d| potential_samples(d, &gref, "drive_potential")).transpose()?;
-        if drive.is_some() != dpot.is_some() {
-            return Err(PyValueError::new_err("`drive` and `drive_potential` must be given together: V(x,t) = V0(x) + drive(t)·drive_potential(x)"));
+        if let Some(ord) = order {
+            let k = ord
+                .extract::<i64>()
+                .map_err(|_| PyTypeError::new_err("`order` must be an integer: 2 (Strang) or 4 (Yoshida composition)"))?;
+            o.order = SplitOrder::from_number(k).py(py)?;
         }
-        let apot = absorber_potential.map(|a| potential_samples(a, &gref, "absorber_potential")).transpose()?;
-        if let Some(i) = apot.as_ref().and_then(|w| w.iter().position(|&v| v < 0.0)) {
-            return Err(PyValueError::new_err(format!(
-                "`absorber_potential` must be >= 0 everywhere (W in V − iW); got a negative value at index {i}"
-            )));
-        }
-        if let Some(w) = absorber_width {
-            let half = 0.5 * (gi.stop() - gi.start());
-            if !(w.is_finite() && w > 0.0 && w <= half) {
-                return Err(PyValueError::new_err(format!(
-                    "`absorber_width` must be a length in (0, {half}] (half the box); got {w}"
-                )));
-            }
-        }
-        if imaginary_time && (drive.is_some() || absorber_width.is_some() || apot.is_some()) {
-            return Err(PyValueError::new_err(
-                "`imaginary_time=True` takes no `drive`, `absorber_width` or `absorber_potential` (imaginary time relaxes a static problem)",
-            ));
-        }
-        cfg.absorber = match (absorber_width, &apot) {
-            (Some(_), Some(_)) => {
-                return Err(PyValueError::new_err("give at most one of `absorber_width` (mask) and `absorber_potential` (complex absorbing potential)"))
-            }
-            (Some(w), None) => Some(Absorber::cos_mask(gi.len(), gi.dx(), w).py(py)?),
-            (None, Some(w)) => Some(Absorber::Cap(w.clone())),
-            (None, None) => None,
-        };
-        let core = SplitStep::new(cfg).py(py)?;
-        Ok(PySplitStep {
-            core: Arc::new(core),
-            grid: g.clone().unbind(),
-            units,
-            mass,
-            potential: v,
-            drive: drive.map(|d| d.clone().unbind()),
-            drive_potential: dpot,
-            absorber_width,
-            absorber_potential: apot,
-            order: if order_enum == SplitOrder::Second { 2 } else { 4 },
-            dt,
-            imaginary_time,
-        })
+        crate::propagate::drive::check_drive_pair(drive.is_some(), drive_potential.is_some()).py(py)?;
+        o.drive_potential = drive_potential.map(|d| potential_samples(d, &gref, "drive_potential")).transpose()?;
+        o.absorber_width = absorber_width;
+        o.absorber_potential = absorber_potential.map(|a| potential_samples(a, &gref, "absorber_potential")).transpose()?;
+        o.imaginary_time = imaginary_time;
+        let core = py.detach(|| SplitStep::new(o)).py(py)?;
+        Ok(PySplitStep { core: Arc::new(core), grid: g.clone().unbind(), drive: drive.map(|d| d.clone().unbind()) })
     }
 
     /// Propagate `psi0` for `steps` steps; records every `record_every` steps (and the last).
@@ -173,7 +128,7 @@ impl PySplitStep {
             return Err(PyKeyboardInterrupt::new_err("propagation interrupted"));
         }
         let run = result.py(py)?;
-        Ok(PyRun::new(run, self.grid.clone_ref(py), self.units))
+        Ok(PyRun::new(run, self.grid.clone_ref(py), self.core.options().units))
     }
 
     /// Propagate many initial states (rows of `psi0s`, shape (M, N)) in parallel.
@@ -197,7 +152,7 @@ impl PySplitStep {
         };
         let core = self.prepared(py, steps)?;
         let runs = py.detach(|| core.run_many(&data, steps, record_every, &mut |_| true)).py(py)?;
-        Ok(runs.into_iter().map(|r| PyRun::new(r, self.grid.clone_ref(py), self.units)).collect())
+        Ok(runs.into_iter().map(|r| PyRun::new(r, self.grid.clone_ref(py), self.core.options().units)).collect())
     }
 
     /// Lowest `count` states by imaginary-time propagation with Gram-Schmidt
@@ -235,15 +190,20 @@ impl PySplitStep {
 
     #[getter]
     fn dt(&self) -> f64 {
-        self.dt
+        self.core.dt()
     }
     #[getter]
     fn order(&self) -> usize {
-        self.order
+        self.core.order().number()
     }
     #[getter]
     fn units(&self) -> &'static str {
-        self.units.name()
+        self.core.options().units.name()
+    }
+    /// Particle mass (mass unit of `units`).
+    #[getter]
+    fn mass(&self) -> f64 {
+        self.core.options().mass
     }
     #[getter]
     fn grid(&self, py: Python<'_>) -> Py<PyFourierGrid> {
@@ -251,40 +211,43 @@ impl PySplitStep {
     }
     #[getter]
     fn potential<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        PyArray1::from_slice(py, &self.potential)
+        PyArray1::from_slice(py, self.core.potential())
     }
     fn __repr__(&self) -> String {
         use crate::basis::Basis;
+        let o = self.core.options();
         format!(
             "SplitStep({}, dt={}, order={}, mass={}, units={:?}{}{})",
             self.grid.get().inner.describe(),
-            self.dt,
-            self.order,
-            self.mass,
-            self.units.name(),
+            o.dt,
+            o.order.number(),
+            o.mass,
+            o.units.name(),
             if self.drive.is_some() { ", driven" } else { "" },
-            if self.imaginary_time { ", imaginary time" } else { "" }
+            if o.imaginary_time { ", imaginary time" } else { "" }
         )
     }
     fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
         let py = slf.py();
         let s = slf.get();
+        let o = s.core.options();
         let ctor = py.import("specwell._core")?.getattr("_split_step_from_parts")?;
         let none = || py.None();
+        let arr = |v: &Option<Vec<f64>>| v.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none);
         let args = PyTuple::new(
             py,
             [
                 s.grid.clone_ref(py).into_any(),
-                PyArray1::from_slice(py, &s.potential).into_any().unbind(),
-                s.mass.into_pyobject(py)?.into_any().unbind(),
-                s.dt.into_pyobject(py)?.into_any().unbind(),
-                s.order.into_pyobject(py)?.into_any().unbind(),
-                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                PyArray1::from_slice(py, &o.potential).into_any().unbind(),
+                o.mass.into_pyobject(py)?.into_any().unbind(),
+                o.dt.into_pyobject(py)?.into_any().unbind(),
+                o.order.number().into_pyobject(py)?.into_any().unbind(),
+                o.units.name().into_pyobject(py)?.into_any().unbind(),
                 s.drive.as_ref().map(|d| d.clone_ref(py)).unwrap_or_else(none),
-                s.drive_potential.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none),
-                s.absorber_width.map(|w| w.into_pyobject(py).map(|o| o.into_any().unbind())).transpose()?.unwrap_or_else(none),
-                s.absorber_potential.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none),
-                s.imaginary_time.into_pyobject(py)?.to_owned().into_any().unbind(),
+                arr(&o.drive_potential),
+                o.absorber_width.map(|w| w.into_pyobject(py).map(|o| o.into_any().unbind())).transpose()?.unwrap_or_else(none),
+                arr(&o.absorber_potential),
+                o.imaginary_time.into_pyobject(py)?.to_owned().into_any().unbind(),
             ],
         )?;
         Ok((ctor, args))
@@ -299,56 +262,37 @@ impl PySplitStep {
         crate::error::check_memory("steps", bytes, "the drive samples for this many steps do not fit; run in shorter segments").py(py)
     }
 
-    /// The core propagator with the drive samples for a run of `steps` steps.
+    /// The core propagator with the drive samples for a run of `steps` steps: a callable
+    /// is called once on the array of sample times (it must be vectorised); an array
+    /// gives one sample per step (f at each step midpoint).
     fn prepared(&self, py: Python<'_>, steps: usize) -> PyResult<Arc<SplitStep>> {
-        let (f, v1) = match (&self.drive, &self.drive_potential) {
-            (Some(f), Some(v1)) => (f.bind(py), v1),
-            _ => return Ok(self.core.clone()),
-        };
+        let Some(f) = &self.drive else { return Ok(self.core.clone()) };
+        let f = f.bind(py);
         self.check_drive_memory(py, steps)?;
         let (values, sampling) = if f.is_callable() {
             let times = self.core.drive_sample_times(steps, DriveSampling::Substeps);
             let t = PyArray1::from_slice(py, &times);
-            // Vectorised call first; fall back to one call per time for scalar-only callables.
-            let values = match f.call1((t,)).and_then(|r| vec_f64(&r, "drive", Some(times.len()))) {
-                Ok(v) => v,
-                Err(_) => times
-                    .iter()
-                    .map(|&ti| {
-                        f.call1((ti,))?.extract::<f64>().map_err(|_| {
-                            PyTypeError::new_err(format!(
-                                "`drive` must return one float per time (vectorised: an array shaped like its input); failed at t = {ti}"
-                            ))
-                        })
-                    })
-                    .collect::<PyResult<Vec<f64>>>()?,
-            };
-            (values, DriveSampling::Substeps)
+            let out = f.call1((t,)).inspect_err(|e| {
+                let _ = e.value(py).call_method1(
+                    "add_note",
+                    ("raised while evaluating `drive` on the array of sample times (drive must be vectorised: f(t_array) -> array)",),
+                );
+            })?;
+            (vec_f64(&out, "drive", Some(times.len()))?, DriveSampling::Substeps)
         } else {
-            let v = vec_f64(f, "drive", None)?;
-            if v.len() < steps {
-                return Err(PyValueError::new_err(format!(
-                    "`drive` samples must have at least `steps` = {steps} entries (f at each step midpoint t_n + dt/2); got {}",
-                    v.len()
-                )));
-            }
-            (v, DriveSampling::Midpoint)
+            (vec_f64(f, "drive", None)?, DriveSampling::Midpoint)
         };
-        crate::error::check_finite("drive", &values).py(py)?;
-        let mut core = (*self.core).clone();
-        core.set_drive(Some(Drive { v1: v1.clone(), f: values, sampling })).py(py)?;
-        Ok(Arc::new(core))
+        Ok(Arc::new(self.core.with_drive(values, sampling).py(py)?))
     }
 }
 
 /// Rebuild a SplitStep (target of `SplitStep.__reduce__`).
 #[pyfunction]
-#[allow(clippy::too_many_arguments)]
 pub fn _split_step_from_parts(
     py: Python<'_>,
     grid: &Bound<'_, PyAny>,
     potential: &Bound<'_, PyAny>,
-    mass: f64,
+    mass: &Bound<'_, PyAny>,
     dt: f64,
     order: &Bound<'_, PyAny>,
     units: &str,
@@ -358,7 +302,7 @@ pub fn _split_step_from_parts(
     absorber_potential: Option<&Bound<'_, PyAny>>,
     imaginary_time: bool,
 ) -> PyResult<PySplitStep> {
-    PySplitStep::new(py, grid, potential, mass, Some(dt), Some(order), units, drive, drive_potential, absorber_width, absorber_potential, imaginary_time)
+    PySplitStep::new(py, grid, potential, Some(mass), Some(dt), Some(order), units, drive, drive_potential, absorber_width, absorber_potential, imaginary_time)
 }
 
 /// tqdm progress bar driven from the Rust loop (a no-op when progress=False).
@@ -537,7 +481,6 @@ pub fn _bare_fft_pair_seconds(py: Python<'_>, n: usize, reps: usize) -> f64 {
 
 /// Rebuild a Run from its parts (target of `Run.__reduce__`).
 #[pyfunction]
-#[allow(clippy::too_many_arguments)]
 pub fn _run_from_parts(
     grid: &Bound<'_, PyFourierGrid>,
     units: &str,

@@ -1,19 +1,6 @@
-//! Layered heterostructures: layers → band-edge and mass profiles, and the
-//! BenDaniel-Duke (1966) eigenproblem solved by Galerkin in the mass coordinate.
-//!
-//! # Model
-//! A [`Heterostructure`] is a stack of [`Layer`]s occupying z ∈ [0, L), L = Σ thickness
-//! (nm). Outside the stack the first layer (z < 0) and the last layer (z ≥ L) continue:
-//! they act as barrier padding. At an interface z_i the layer on the right applies
-//! (profiles are right-continuous).
-//!
-//! **Field convention.** `field_kv_cm` = F is the electric field along +z in kV/cm.
-//! An electron (charge −e) in it has potential energy +e·F·z, and 1 kV/cm gives
-//! 0.1 meV/nm ([`MEV_PER_NM_PER_KV_CM`]). The field is *confined to the structure*:
-//! V_field(z) = 0.1·F·(clamp(z, 0, L) − L/2), i.e. linear inside the stack, zero at
-//! the stack centre and constant (continuous) in the padding. So F > 0 raises the
-//! right-hand side, the padding stays flat (no sawtooth of a periodic box, no
-//! field-induced continuum), and the states stay truly bound.
+//! A heterostructure's BenDaniel-Duke (1966) eigenproblem, Galerkin in the mass
+//! coordinate on the periodic box of a [`FourierGrid`] (the model, layers and field
+//! convention, is in [`crate::model::stack`]; the basis in [`crate::basis::layered`]).
 //!
 //! # Method
 //! With the mass m(z) in m_e, BenDaniel-Duke reads
@@ -49,212 +36,19 @@
 //!
 //! Units: lengths nm, energies meV, masses m_e ([`Units::Semiconductor`] only).
 
-use crate::basis::FourierGrid;
-use crate::eigen::dense::lowest_of_matrix;
-use crate::error::{check_finite, check_memory, InputError, NumericalError, Result};
-use crate::units::Units;
-use faer::linalg::triangular_solve::{solve_lower_triangular_in_place, solve_upper_triangular_in_place};
-use faer::{Mat, MatRef, Par, Side};
+use super::fourier::GridPreconditioner;
+use super::{DiscreteProblem, Structure};
+use crate::basis::LayeredBasis;
+use crate::error::{check_memory, InputError};
+use crate::linalg::lobpcg::Preconditioner;
+use crate::model::stack::{fourier_coefficients, Heterostructure};
+use crate::model::units::Units;
+use faer::{Mat, MatRef};
 use num_complex::Complex64;
 use rayon::prelude::*;
 use rustfft::{Fft, FftPlanner};
 use std::f64::consts::{PI, SQRT_2};
 use std::sync::Arc;
-
-/// Electron potential energy gradient of a 1 kV/cm field, in meV/nm.
-pub const MEV_PER_NM_PER_KV_CM: f64 = 0.1;
-
-/// One layer: thickness (nm, > 0), conduction band edge (meV), effective mass (m_e, > 0).
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Layer {
-    pub thickness: f64,
-    pub band_edge: f64,
-    pub mass: f64,
-}
-
-impl Layer {
-    /// A layer; validated when it enters a [`Heterostructure`].
-    pub fn new(thickness: f64, band_edge: f64, mass: f64) -> Self {
-        Layer { thickness, band_edge, mass }
-    }
-}
-
-/// A validated stack of layers on [0, L) with an optional field confined to it.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Heterostructure {
-    layers: Vec<Layer>,
-    field_kv_cm: f64,
-    /// Interface positions z_0 = 0 < z_1 < … < z_n = L.
-    bounds: Vec<f64>,
-}
-
-impl Heterostructure {
-    /// Requires ≥ 1 layer, every thickness and mass finite and > 0, every band edge
-    /// finite, a finite total thickness and a finite field.
-    pub fn new(layers: Vec<Layer>, field_kv_cm: f64) -> std::result::Result<Self, InputError> {
-        if layers.is_empty() {
-            return Err(InputError::range("layers", "a list of at least one layer", "an empty list"));
-        }
-        for (i, l) in layers.iter().enumerate() {
-            if !(l.thickness.is_finite() && l.thickness > 0.0) {
-                return Err(InputError::range(&format!("layers[{i}].thickness"), "a finite number of nm > 0", l.thickness));
-            }
-            if !l.band_edge.is_finite() {
-                return Err(InputError::range(&format!("layers[{i}].band_edge"), "a finite number of meV", l.band_edge));
-            }
-            if !(l.mass.is_finite() && l.mass > 0.0) {
-                return Err(InputError::range(&format!("layers[{i}].mass"), "a finite number of m_e > 0", l.mass));
-            }
-        }
-        if !field_kv_cm.is_finite() {
-            return Err(InputError::range("field_kv_cm", "a finite number of kV/cm", field_kv_cm));
-        }
-        let mut bounds = Vec::with_capacity(layers.len() + 1);
-        let mut z = 0.0;
-        bounds.push(z);
-        for l in &layers {
-            z += l.thickness;
-            bounds.push(z);
-        }
-        if !z.is_finite() {
-            return Err(InputError::range("layers", "layers whose total thickness is a finite number of nm", z));
-        }
-        Ok(Heterostructure { layers, field_kv_cm, bounds })
-    }
-
-    pub fn layers(&self) -> &[Layer] {
-        &self.layers
-    }
-    /// Field F along +z in kV/cm (see the module docs for the sign convention).
-    pub fn field_kv_cm(&self) -> f64 {
-        self.field_kv_cm
-    }
-    /// L = Σ thickness (nm).
-    pub fn total_thickness(&self) -> f64 {
-        self.bounds[self.bounds.len() - 1]
-    }
-    /// Stack centre z_c = L/2, where the field term vanishes.
-    pub fn center(&self) -> f64 {
-        0.5 * self.total_thickness()
-    }
-    /// Interface positions 0 = z_0 < … < z_n = L.
-    pub fn interfaces(&self) -> &[f64] {
-        &self.bounds
-    }
-
-    /// Index of the layer whose material is found at z (padding included, right-continuous).
-    fn layer_index(&self, z: f64) -> usize {
-        let n = self.layers.len();
-        // Number of interior interfaces z_1..z_{n-1} that are <= z.
-        self.bounds[1..n].partition_point(|&b| b <= z)
-    }
-
-    /// Field energy 0.1·F·(clamp(z, 0, L) − L/2), meV.
-    fn field_energy(&self, z: f64) -> f64 {
-        let zc = z.clamp(0.0, self.total_thickness());
-        MEV_PER_NM_PER_KV_CM * self.field_kv_cm * (zc - self.center())
-    }
-
-    /// V(z) = band edge + field energy at one point (meV); NaN for NaN input.
-    pub fn potential_at(&self, z: f64) -> f64 {
-        if z.is_nan() {
-            return f64::NAN;
-        }
-        self.layers[self.layer_index(z)].band_edge + self.field_energy(z)
-    }
-
-    /// m(z) in m_e at one point; NaN for NaN input.
-    pub fn mass_at(&self, z: f64) -> f64 {
-        if z.is_nan() {
-            return f64::NAN;
-        }
-        self.layers[self.layer_index(z)].mass
-    }
-
-    /// V(z) (meV) on the points z (nm), for plotting and collocation.
-    pub fn potential(&self, z: &[f64]) -> Vec<f64> {
-        z.iter().map(|&z| self.potential_at(z)).collect()
-    }
-
-    /// m(z) (m_e) on the points z (nm).
-    pub fn mass(&self, z: &[f64]) -> Vec<f64> {
-        z.iter().map(|&z| self.mass_at(z)).collect()
-    }
-}
-
-/// A piece of the box on which m is constant and V linear in z.
-#[derive(Debug, Clone, Copy)]
-struct Piece {
-    z0: f64,
-    z1: f64,
-    s0: f64,
-    s1: f64,
-    mass: f64,
-    /// V at the piece midpoint (meV).
-    v_mid: f64,
-    /// dV/dz on the piece (meV/nm).
-    slope: f64,
-}
-
-/// sin(x)/x, stable at 0.
-fn sinc(x: f64) -> f64 {
-    if x.abs() < 1e-4 {
-        1.0 - x * x / 6.0
-    } else {
-        x.sin() / x
-    }
-}
-
-/// g(x) = (sin x − x cos x)/x², with ∫_{−h}^{h} v e^{−ikv} dv = −2i h² g(kh); series for |x| < 1.
-fn gfun(x: f64) -> f64 {
-    if x.abs() < 1.0 {
-        // g = Σ_{n≥1} (−1)^{n+1} 2n/(2n+1)! x^{2n−1}
-        let x2 = x * x;
-        let mut term = x / 3.0; // n = 1
-        let mut sum = term;
-        for n in 2..12 {
-            let nf = n as f64;
-            // ratio of consecutive terms: −x² · (2n/(2n+1)!) / ((2n−2)/(2n−1)!)
-            term *= -x2 * (2.0 * nf) / ((2.0 * nf - 2.0) * (2.0 * nf) * (2.0 * nf + 1.0));
-            sum += term;
-        }
-        sum
-    } else {
-        (x.sin() - x * x.cos()) / (x * x)
-    }
-}
-
-/// Exact Fourier coefficients f̂_d = (1/S)∫_0^S f(s) e^{−2πi d s/S} ds, d = −dmax..=dmax
-/// (stored at index d + dmax), of a function that is linear on every piece:
-/// f(s) = mid + slope_s·(s − s_mid). `f` returns (mid, slope_s) for a piece.
-fn fourier_coefficients(pieces: &[Piece], s_len: f64, dmax: usize, f: impl Fn(&Piece) -> (f64, f64)) -> Vec<Complex64> {
-    let vals: Vec<(f64, f64, f64, f64)> = pieces
-        .iter()
-        .map(|p| {
-            let (mid, slope) = f(p);
-            (p.s1 - p.s0, 0.5 * (p.s0 + p.s1) / s_len, mid, slope)
-        })
-        .collect();
-    let mut out = vec![Complex64::new(0.0, 0.0); 2 * dmax + 1];
-    for d in 0..=dmax {
-        let df = d as f64;
-        let mut acc = Complex64::new(0.0, 0.0);
-        for &(w, mid_frac, mid, slope) in &vals {
-            let x = PI * df * w / s_len;
-            // Phase e^{−i k s_mid} with k s_mid = 2π d s_mid/S reduced mod 2π.
-            let t = df * mid_frac;
-            let theta = 2.0 * PI * (t - t.floor());
-            let (sn, cs) = theta.sin_cos();
-            let re = mid * w * sinc(x);
-            let im = -slope * 0.5 * w * w * gfun(x);
-            acc += Complex64::new(re, im) * Complex64::new(cs, -sn);
-        }
-        acc /= s_len;
-        out[dmax + d] = acc;
-        out[dmax - d] = acc.conj();
-    }
-    out
-}
 
 /// Smallest 2^a·3^b·5^c ≥ n.
 fn next_smooth(n: usize) -> usize {
@@ -262,7 +56,7 @@ fn next_smooth(n: usize) -> usize {
     loop {
         let mut r = m;
         for p in [2, 3, 5] {
-            while r % p == 0 {
+            while r.is_multiple_of(p) {
                 r /= p;
             }
         }
@@ -296,22 +90,21 @@ struct Scratch {
 /// Galerkin in the mass coordinate s (see the module docs). Built once; owns the
 /// FFT plans and the circulant symbols of V/m, 1/m and (z − z_c)/m.
 pub struct LayeredProblem {
-    stack: Heterostructure,
-    grid: FourierGrid,
+    basis: Arc<LayeredBasis>,
     units: Units,
-    pieces: Vec<Piece>,
     n: usize,
     /// Highest non-Nyquist |mode| P = ⌊(N−1)/2⌋; the Toeplitz part has N_t = 2P + 1 modes.
     half: usize,
     /// Circulant length.
     l: usize,
-    s_len: f64,
     /// (ħ²/2m_e)·k_p² in numpy order (Nyquist: k = πN/S).
     kin: Vec<f64>,
     /// Symbols of V/m, 1/m and (z − z_c)/m.
     sym_w: Symbol,
     sym_b: Symbol,
     sym_z: Symbol,
+    /// Largest mass in the box (m_e).
+    mass_max: f64,
     fft_l: Arc<dyn Fft<f64>>,
     ifft_l: Arc<dyn Fft<f64>>,
     scratch_len: usize,
@@ -319,27 +112,13 @@ pub struct LayeredProblem {
 
 impl std::fmt::Debug for LayeredProblem {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(
-            f,
-            "LayeredProblem(layers={}, field_kv_cm={}, box=[{}, {}), N={}, S={:.6} nm·m_e, circulant={})",
-            self.stack.layers.len(),
-            self.stack.field_kv_cm,
-            self.grid.start(),
-            self.grid.stop(),
-            self.n,
-            self.s_len,
-            self.l
-        )
+        write!(f, "LayeredProblem({:?}, N={}, circulant={})", self.basis, self.n, self.l)
     }
 }
 
 impl LayeredProblem {
-    /// Build the problem of `stack` in the box [grid.start, grid.stop) with N = grid.len()
-    /// basis functions. Requires `units` = Semiconductor, N ≥ 3 and a box that contains
-    /// the stack: start ≤ 0 and stop ≥ L (the parts outside the stack are padding
-    /// that continues the outer layers; with start = 0 and stop = L the periodic box
-    /// joins the last layer directly to the first).
-    pub fn new(stack: &Heterostructure, grid: &FourierGrid, units: Units) -> std::result::Result<Self, InputError> {
+    /// The problem of a stack on its [`LayeredBasis`]. Requires `units` = Semiconductor.
+    pub fn new(basis: Arc<LayeredBasis>, units: Units) -> std::result::Result<Self, InputError> {
         if units != Units::Semiconductor {
             return Err(InputError::range(
                 "units",
@@ -347,19 +126,7 @@ impl LayeredProblem {
                 format!("{:?}", units.name()),
             ));
         }
-        let n = grid.len();
-        if n < 3 {
-            return Err(InputError::range("grid", "a FourierGrid with at least 3 points (odd counts preferred)", format!("{n} points")));
-        }
-        let total = stack.total_thickness();
-        let (a0, a1) = (grid.start(), grid.stop());
-        if !(a0 <= 0.0 && a1 >= total) {
-            return Err(InputError::range(
-                "grid",
-                format!("a box [start, stop) containing the stack [0, {total}] nm, i.e. start <= 0 and stop >= {total}"),
-                format!("[{a0}, {a1})"),
-            ));
-        }
+        let n = basis.grid().len();
         let half = (n - 1) / 2;
         let nt = 2 * half + 1;
         let l = next_smooth(2 * nt - 1);
@@ -368,32 +135,9 @@ impl LayeredProblem {
             (16 * (3 * l + 3 * (2 * nt) + 2 * n) + 8 * n) as u64,
             "use fewer grid points",
         )?;
-
-        // Pieces of constant mass in the box, in order.
-        let mut pieces = Vec::with_capacity(stack.layers.len() + 2);
-        let mut s = 0.0;
-        let mut push = |z0: f64, z1: f64, layer: &Layer, v_mid: f64, slope: f64, s: &mut f64| {
-            if z1 > z0 {
-                let s1 = *s + layer.mass * (z1 - z0);
-                pieces.push(Piece { z0, z1, s0: *s, s1, mass: layer.mass, v_mid, slope });
-                *s = s1;
-            }
-        };
-        let fgrad = MEV_PER_NM_PER_KV_CM * stack.field_kv_cm;
-        let first = stack.layers[0];
-        let last = stack.layers[stack.layers.len() - 1];
-        push(a0, 0.0, &first, first.band_edge + stack.field_energy(0.0), 0.0, &mut s);
-        for (i, layer) in stack.layers.iter().enumerate() {
-            let (z0, z1) = (stack.bounds[i], stack.bounds[i + 1]);
-            let zm = 0.5 * (z0 + z1);
-            push(z0, z1, layer, layer.band_edge + fgrad * (zm - stack.center()), fgrad, &mut s);
-        }
-        push(total, a1, &last, last.band_edge + stack.field_energy(total), 0.0, &mut s);
-        let s_len = s;
-        if !(s_len.is_finite() && s_len > 0.0) {
-            return Err(InputError::range("grid", "a box whose mass-weighted length ∫m dz is finite and > 0", s_len));
-        }
-
+        let pieces = basis.pieces();
+        let s_len = basis.s_length();
+        let grid = basis.s_grid();
         let c = units.hbar2_over_2me();
         let kin = (0..n)
             .map(|p| {
@@ -402,11 +146,11 @@ impl LayeredProblem {
                 c * k * k
             })
             .collect();
-        let zc = stack.center();
+        let zc = basis.stack().center();
         let dmax = n;
-        let coef_w = fourier_coefficients(&pieces, s_len, dmax, |p| (p.v_mid / p.mass, p.slope / (p.mass * p.mass)));
-        let coef_b = fourier_coefficients(&pieces, s_len, dmax, |p| (1.0 / p.mass, 0.0));
-        let coef_z = fourier_coefficients(&pieces, s_len, dmax, |p| ((0.5 * (p.z0 + p.z1) - zc) / p.mass, 1.0 / (p.mass * p.mass)));
+        let coef_w = fourier_coefficients(pieces, s_len, dmax, |p| (p.v_mid / p.mass, p.slope / (p.mass * p.mass)));
+        let coef_b = fourier_coefficients(pieces, s_len, dmax, |p| (1.0 / p.mass, 0.0));
+        let coef_z = fourier_coefficients(pieces, s_len, dmax, |p| ((0.5 * (p.z0 + p.z1) - zc) / p.mass, 1.0 / (p.mass * p.mass)));
 
         let mut planner = FftPlanner::new();
         let fft_l = planner.plan_fft_forward(l);
@@ -423,9 +167,7 @@ impl LayeredProblem {
         // Circulant embedding of the N_t × N_t Toeplitz block (differences |d| ≤ 2P).
         let circulant = |coef: &[Complex64]| -> Vec<Complex64> {
             let mut col = vec![Complex64::new(0.0, 0.0); l];
-            for d in 0..=2 * half {
-                col[d] = coef[dmax + d];
-            }
+            col[..=2 * half].copy_from_slice(&coef[dmax..=dmax + 2 * half]);
             for d in 1..=2 * half {
                 col[l - d] = coef[dmax - d];
             }
@@ -439,7 +181,7 @@ impl LayeredProblem {
         // u_m = (t_{m−N/2} + t_{m+N/2})/√2, and its diagonal t_0 + Re t_N.
         let symbol = |coef: Vec<Complex64>| -> Symbol {
             let eig = circulant(&coef);
-            let (nyq_col, nyq_diag) = if n % 2 == 0 {
+            let (nyq_col, nyq_diag) = if n.is_multiple_of(2) {
                 let t = |d: isize| coef[(d + dmax as isize) as usize];
                 let nh = (n / 2) as isize;
                 let col = (0..n)
@@ -461,95 +203,16 @@ impl LayeredProblem {
         let sym_w = symbol(coef_w);
         let sym_b = symbol(coef_b);
         let sym_z = symbol(coef_z);
-        Ok(LayeredProblem {
-            stack: stack.clone(),
-            grid: grid.clone(),
-            units,
-            pieces,
-            n,
-            half,
-            l,
-            s_len,
-            kin,
-            sym_w,
-            sym_b,
-            sym_z,
-            fft_l,
-            ifft_l,
-            scratch_len,
-        })
+        let mass_max = pieces.iter().fold(0.0_f64, |m, p| m.max(p.mass));
+        Ok(LayeredProblem { basis, units, n, half, l, kin, sym_w, sym_b, sym_z, mass_max, fft_l, ifft_l, scratch_len })
     }
 
-    /// Matrix dimension N.
-    pub fn dim(&self) -> usize {
-        self.n
+    /// The basis the problem is posed on.
+    pub fn basis(&self) -> &Arc<LayeredBasis> {
+        &self.basis
     }
     pub fn stack(&self) -> &Heterostructure {
-        &self.stack
-    }
-    pub fn grid(&self) -> &FourierGrid {
-        &self.grid
-    }
-    pub fn units(&self) -> Units {
-        self.units
-    }
-    /// Period S = ∫_{start}^{stop} m dz of the mass coordinate (nm·m_e).
-    pub fn s_length(&self) -> f64 {
-        self.s_len
-    }
-    /// Length of the circulant embedding used by the matrix-free products.
-    pub fn circulant_len(&self) -> usize {
-        self.l
-    }
-
-    /// V(z) (meV) on the FourierGrid points x_j (band edge + field), e.g. for
-    /// `Hamiltonian` potentials and plots.
-    pub fn band_edge_profile(&self) -> Vec<f64> {
-        self.stack.potential(self.grid.x())
-    }
-    /// m(z) (m_e) on the FourierGrid points x_j.
-    pub fn mass_profile(&self) -> Vec<f64> {
-        self.stack.mass(self.grid.x())
-    }
-    /// V(z) on arbitrary points (same as [`Heterostructure::potential`]).
-    pub fn potential(&self, z: &[f64]) -> Vec<f64> {
-        self.stack.potential(z)
-    }
-    /// m(z) on arbitrary points (same as [`Heterostructure::mass`]).
-    pub fn mass(&self, z: &[f64]) -> Vec<f64> {
-        self.stack.mass(z)
-    }
-
-    /// s(z) for z in the box; z outside the box is first wrapped into [start, stop)
-    /// (the problem is periodic). NaN for NaN input.
-    fn s_at(&self, z: f64) -> f64 {
-        let (a0, a1) = (self.grid.start(), self.grid.stop());
-        let mut z = z;
-        if !(z >= a0 && z < a1) {
-            let len = a1 - a0;
-            z = a0 + (z - a0).rem_euclid(len);
-        }
-        let i = self.pieces.partition_point(|p| p.z1 <= z).min(self.pieces.len() - 1);
-        let p = &self.pieces[i];
-        p.s0 + p.mass * (z - p.z0)
-    }
-
-    /// z(s) for s in [0, S].
-    fn z_at(&self, s: f64) -> f64 {
-        let i = self.pieces.partition_point(|p| p.s1 <= s).min(self.pieces.len() - 1);
-        let p = &self.pieces[i];
-        p.z0 + (s - p.s0) / p.mass
-    }
-
-    /// The mass coordinate s(z) (nm·m_e) of the points z (wrapped into the box).
-    pub fn mass_coordinate(&self, z: &[f64]) -> Vec<f64> {
-        z.iter().map(|&z| self.s_at(z)).collect()
-    }
-
-    /// Positions z(s_j) (nm) of the basis nodes s_j = j·S/N; the coefficient c_j of a
-    /// state is ψ(z(s_j))·√(S/N) (exactly for odd N), handy for sign and overview plots.
-    pub fn node_positions(&self) -> Vec<f64> {
-        (0..self.n).map(|j| self.z_at(j as f64 * self.s_len / self.n as f64)).collect()
+        self.basis.stack()
     }
 
     fn scratch(&self) -> Scratch {
@@ -569,7 +232,7 @@ impl LayeredProblem {
         let scale = 1.0 / (n as f64).sqrt();
         let half = self.half;
         let neg = n - half; // first numpy index of the negative modes
-        let even = n % 2 == 0;
+        let even = n.is_multiple_of(2);
         let mut j = 0;
         while j < ncols {
             let second = j + 1 < ncols;
@@ -584,7 +247,7 @@ impl LayeredProblem {
                     *m = Complex64::new(a, 0.0);
                 }
             }
-            self.grid.forward().process_with_scratch(&mut sc.modal, &mut sc.fft);
+            self.basis.s_grid().forward().process_with_scratch(&mut sc.modal, &mut sc.fft);
             sc.modal.iter_mut().for_each(|z| *z *= scale);
             // Modes m = −P..P at positions m + P; zero padding up to L.
             sc.ext[..half].copy_from_slice(&sc.modal[neg..]);
@@ -627,7 +290,7 @@ impl LayeredProblem {
                 let p = n / 2;
                 sc.modal[p] = y_nyq + if kinetic { a_nyq * kin[p] } else { Complex64::new(0.0, 0.0) };
             }
-            self.grid.inverse().process_with_scratch(&mut sc.modal, &mut sc.fft);
+            self.basis.s_grid().inverse().process_with_scratch(&mut sc.modal, &mut sc.fft);
             for (o, z) in y[j * n..(j + 1) * n].iter_mut().zip(&sc.modal) {
                 *o = z.re * scale;
             }
@@ -653,30 +316,6 @@ impl LayeredProblem {
         self.apply_op(&self.sym_b, false, x, y, ncols)
     }
 
-    fn check_block(&self, x: &[f64], ncols: usize) -> std::result::Result<(), InputError> {
-        let want = self.n.checked_mul(ncols).ok_or_else(|| InputError::range("ncols", "small enough that N·ncols fits in memory", ncols))?;
-        if x.len() != want {
-            return Err(InputError::Length { argument: "x".into(), expected: want, got: x.len() });
-        }
-        check_finite("x", x)
-    }
-
-    /// Checked A·x for user input: `x` must hold exactly N·ncols finite numbers.
-    pub fn try_apply_a(&self, x: &[f64], ncols: usize) -> std::result::Result<Vec<f64>, InputError> {
-        self.check_block(x, ncols)?;
-        let mut y = vec![0.0; x.len()];
-        self.apply_a(x, &mut y, ncols);
-        Ok(y)
-    }
-
-    /// Checked B·x for user input: `x` must hold exactly N·ncols finite numbers.
-    pub fn try_apply_b(&self, x: &[f64], ncols: usize) -> std::result::Result<Vec<f64>, InputError> {
-        self.check_block(x, ncols)?;
-        let mut y = vec![0.0; x.len()];
-        self.apply_b(x, &mut y, ncols);
-        Ok(y)
-    }
-
     /// Dense grid-basis matrix of (kinetic +) Toeplitz(coef), built directly from the
     /// Fourier coefficients (no circulant embedding): M in modes, then G = F^H M F / N.
     fn dense_op(&self, sym: &Symbol, kinetic: bool) -> Mat<f64> {
@@ -686,7 +325,7 @@ impl LayeredProblem {
         let nyq_m = (n / 2) as isize;
         // Modes of numpy index p with weights; the even-N Nyquist cosine is lifted onto ±N/2.
         let ext = |p: usize| -> [(isize, f64); 2] {
-            if n % 2 == 0 && p == n / 2 {
+            if n.is_multiple_of(2) && p == n / 2 {
                 [(nyq_m, 1.0 / SQRT_2), (-nyq_m, 1.0 / SQRT_2)]
             } else {
                 let m = if p < n.div_ceil(2) { p as isize } else { p as isize - n as isize };
@@ -721,8 +360,8 @@ impl LayeredProblem {
                 row
             })
             .collect();
-        let fwd = self.grid.forward().clone();
-        let inv = self.grid.inverse().clone();
+        let fwd = self.basis.s_grid().forward().clone();
+        let inv = self.basis.s_grid().inverse().clone();
         rows.par_iter_mut().for_each(|row| fwd.process(row));
         let cols: Vec<Vec<f64>> = (0..n)
             .into_par_iter()
@@ -738,143 +377,13 @@ impl LayeredProblem {
         g
     }
 
-    fn dense_bytes(&self) -> u64 {
-        (self.n as u64) * (self.n as u64) * 8
-    }
-
-    /// Dense A (N×N, real symmetric) in the grid basis.
-    pub fn matrix_a(&self) -> std::result::Result<Mat<f64>, InputError> {
-        check_memory("grid", 3 * self.dense_bytes(), "the dense path needs N×N arrays; use the matrix-free apply_a with an iterative solver")?;
-        Ok(self.dense_op(&self.sym_w, true))
-    }
-
-    /// Dense A without the memory check (the caller has checked).
-    pub(crate) fn matrix_a_unchecked(&self) -> Mat<f64> {
-        self.dense_op(&self.sym_w, true)
-    }
-
-    /// Dense B without the memory check (the caller has checked).
-    pub(crate) fn matrix_b_unchecked(&self) -> Mat<f64> {
-        self.dense_op(&self.sym_b, false)
-    }
-
-    /// Dense B (N×N, real symmetric positive definite) in the grid basis.
-    pub fn matrix_b(&self) -> std::result::Result<Mat<f64>, InputError> {
-        check_memory("grid", 3 * self.dense_bytes(), "the dense path needs N×N arrays; use the matrix-free apply_b with an iterative solver")?;
-        Ok(self.dense_op(&self.sym_b, false))
-    }
-
-    /// Lowest `count` solutions of A c = E B c by dense Cholesky reduction
-    /// (B = LLᵀ, C = L⁻¹AL⁻ᵀ, eigh, c = L⁻ᵀy). Energies ascending (meV); eigenvectors
-    /// (N × count) B-orthonormal, i.e. ∫|ψ|² dz = 1; each is made positive in its
-    /// leftmost region where |c_j| exceeds 1 % of its maximum.
-    pub fn solve_dense(&self, count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
-        let n = self.n;
-        if !(1..=n).contains(&count) {
-            return Err(InputError::range("count", format!("an integer in [1, {n}]"), count).into());
-        }
-        check_memory("grid", 5 * self.dense_bytes(), "the dense path needs about five N×N float64 arrays; use fewer grid points or an iterative solver")?;
-        let a = self.dense_op(&self.sym_w, true);
-        let b = self.dense_op(&self.sym_b, false);
-        let llt = b
-            .llt(Side::Lower)
-            .map_err(|e| NumericalError::EigenFailed(format!("Cholesky factorisation of B failed: {e:?}")))?;
-        let lfac = llt.L().to_owned();
-        drop(b);
-        let mut x = a;
-        solve_lower_triangular_in_place(lfac.as_ref(), x.as_mut(), par); // L⁻¹A
-        let mut c = x.transpose().to_owned();
-        drop(x);
-        solve_lower_triangular_in_place(lfac.as_ref(), c.as_mut(), par); // L⁻¹AL⁻ᵀ
-        crate::linalg::symmetrize(&mut c);
-        let (vals, mut v) = lowest_of_matrix(c.as_ref(), count, par)?;
-        drop(c);
-        solve_upper_triangular_in_place(lfac.transpose(), v.as_mut(), par);
-        fix_signs(&mut v);
-        Ok((vals, v))
-    }
-
-    fn check_coefs(&self, coefs: MatRef<'_, f64>) -> std::result::Result<(), InputError> {
-        if coefs.nrows() != self.n {
-            return Err(InputError::Length { argument: "coefs".into(), expected: self.n, got: coefs.nrows() });
-        }
-        for j in 0..coefs.ncols() {
-            for i in 0..self.n {
-                if !coefs[(i, j)].is_finite() {
-                    return Err(InputError::NotFinite { argument: "coefs".into(), index: j * self.n + i });
-                }
-            }
-        }
-        Ok(())
-    }
-
-    /// ψ(z) of the states whose coefficients are the columns of `coefs` (N × k), as a
-    /// z.len() × k matrix: the trigonometric series evaluated at s(z). With
-    /// B-orthonormal coefficients ∫|ψ|² dz = 1. Points outside the box are wrapped
-    /// into it (the problem is periodic).
-    pub fn evaluate(&self, coefs: MatRef<'_, f64>, z: &[f64]) -> std::result::Result<Mat<f64>, InputError> {
-        self.check_coefs(coefs)?;
-        check_finite("z", z)?;
-        let n = self.n;
-        let k = coefs.ncols();
-        let half = (n - 1) / 2; // non-Nyquist positive modes 1..=half
-        let scale = 1.0 / (n as f64).sqrt();
-        // Per column: a_m = x̂_m for m = 0..=half, and the Nyquist coefficient.
-        let mut spec = vec![Complex64::new(0.0, 0.0); n];
-        let mut scr = vec![Complex64::new(0.0, 0.0); self.scratch_len];
-        let mut modes: Vec<Vec<Complex64>> = Vec::with_capacity(k);
-        let mut nyq: Vec<f64> = Vec::with_capacity(k);
-        for j in 0..k {
-            for i in 0..n {
-                spec[i] = Complex64::new(coefs[(i, j)], 0.0);
-            }
-            self.grid.forward().process_with_scratch(&mut spec, &mut scr);
-            modes.push(spec[..=half].iter().map(|z| z * scale).collect());
-            nyq.push(if n % 2 == 0 { spec[n / 2].re * scale } else { 0.0 });
-        }
-        let inv_sqrt_s = 1.0 / self.s_len.sqrt();
-        let rows: Vec<Vec<f64>> = z
-            .par_iter()
-            .map(|&zi| {
-                let s = self.s_at(zi);
-                let theta = 2.0 * PI * s / self.s_len;
-                let mut out: Vec<f64> = modes.iter().map(|a| a[0].re).collect();
-                let (s1, c1) = theta.sin_cos();
-                let step = Complex64::new(c1, s1);
-                let mut e = Complex64::new(1.0, 0.0);
-                for m in 1..=half {
-                    if m % 32 == 0 {
-                        let (sm, cm) = (m as f64 * theta).sin_cos();
-                        e = Complex64::new(cm, sm);
-                    } else {
-                        e *= step;
-                    }
-                    for (o, a) in out.iter_mut().zip(&modes) {
-                        let t = a[m];
-                        *o += 2.0 * (t.re * e.re - t.im * e.im);
-                    }
-                }
-                if n % 2 == 0 {
-                    let cn = (0.5 * n as f64 * theta).cos() * SQRT_2;
-                    for (o, &b) in out.iter_mut().zip(&nyq) {
-                        *o += b * cn;
-                    }
-                }
-                out.iter_mut().for_each(|o| *o *= inv_sqrt_s);
-                out
-            })
-            .collect();
-        Ok(Mat::from_fn(z.len(), k, |i, j| rows[i][j]))
-    }
-
     /// Position (dipole) matrix ⟨i|z|j⟩ = ∫ψ_i ψ_j z dz = ∫ψ̃_i ψ̃_j z(s)/m(s) ds (nm) of
     /// the states in the columns of `coefs` (N × k), k × k symmetric. z(s)/m(s) is
     /// piecewise linear in s, so its Toeplitz symbol is exact; the matrix is built as
     /// Cᵀ·Toeplitz((z − z_c)/m)·C + z_c·CᵀBC with z_c the stack centre. The box is
     /// periodic in s: z jumps from stop to start at the box edge, so states must be
     /// negligible there (as they are for bound states in adequate padding).
-    pub fn position_matrix(&self, coefs: MatRef<'_, f64>) -> std::result::Result<Mat<f64>, InputError> {
-        self.check_coefs(coefs)?;
+    fn position(&self, coefs: MatRef<'_, f64>) -> Mat<f64> {
         let n = self.n;
         let k = coefs.ncols();
         let x: Vec<f64> = (0..k).flat_map(|j| (0..n).map(move |i| (i, j))).map(|(i, j)| coefs[(i, j)]).collect();
@@ -882,7 +391,7 @@ impl LayeredProblem {
         let mut yb = vec![0.0; n * k];
         self.apply_op(&self.sym_z, false, &x, &mut yz, k);
         self.apply_op(&self.sym_b, false, &x, &mut yb, k);
-        let zc = self.stack.center();
+        let zc = self.basis.stack().center();
         let dot = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(u, v)| u * v).sum::<f64>();
         let mut r = Mat::<f64>::zeros(k, k);
         for i in 0..k {
@@ -896,28 +405,75 @@ impl LayeredProblem {
                 r[(j, i)] = v;
             }
         }
-        Ok(r)
+        r
     }
 }
 
-/// Make each column positive in its leftmost region where |c_j| > 1 % of its maximum.
-fn fix_signs(v: &mut Mat<f64>) {
-    for j in 0..v.ncols() {
-        let max = (0..v.nrows()).map(|i| v[(i, j)].abs()).fold(0.0, f64::max);
-        if let Some(i) = (0..v.nrows()).find(|&i| v[(i, j)].abs() > 0.01 * max) {
-            if v[(i, j)] < 0.0 {
-                for r in 0..v.nrows() {
-                    v[(r, j)] = -v[(r, j)];
-                }
-            }
-        }
+impl DiscreteProblem for LayeredProblem {
+    fn dim(&self) -> usize {
+        self.n
+    }
+    fn structure(&self) -> Structure {
+        Structure { generalized: true, fast_apply: true }
+    }
+    /// y = A x, O(N log N) per column. A = (ħ²/2m_e)k² + Toeplitz(V/m) (meV/m_e).
+    fn apply_a(&self, x: &[f64], y: &mut [f64], ncols: usize) {
+        self.apply_op(&self.sym_w, true, x, y, ncols)
+    }
+    /// y = B x (B = Toeplitz(1/m), m_e⁻¹).
+    fn apply_b(&self, x: &[f64], y: &mut [f64], ncols: usize) {
+        self.apply_op(&self.sym_b, false, x, y, ncols)
+    }
+    fn dense_a(&self) -> Mat<f64> {
+        self.dense_op(&self.sym_w, true)
+    }
+    fn dense_b(&self) -> Option<Mat<f64>> {
+        Some(self.dense_op(&self.sym_b, false))
+    }
+    /// k_s = πN/S in the mass coordinate; T = (ħ²/2m_e)·k_s² relative to B ≥ 1/m_max,
+    /// plus the largest |V| of the layers.
+    fn norm_estimate(&self) -> f64 {
+        let ks = PI * self.n as f64 / self.basis.s_length();
+        let vmax = self.basis.pieces().iter().fold(0.0_f64, |m, p| m.max(p.v_mid.abs() + 0.5 * (p.z1 - p.z0) * p.slope.abs()));
+        self.units.hbar2_over_2me() * ks * ks * self.mass_max + vmax
+    }
+    /// Kinetic-energy preconditioner in the mass coordinate, (ħ²/2m_e) k_s² + σ on the
+    /// s-grid (kinetic part only, σ the lowest kinetic quantum: the potential-weighted
+    /// form stalled on 1025-mode wells in the mass coordinate (measured), this one
+    /// converges in ~50 iterations there).
+    fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
+        let c = self.units.hbar2_over_2me();
+        Some(Box::new(GridPreconditioner::with_potential(self.basis.s_grid(), c, vec![0.0; self.n], None)))
+    }
+    fn position_matrix(&self, v: MatRef<'_, f64>) -> Mat<f64> {
+        self.position(v)
+    }
+    /// ∫|ψ|² m dz = ∫|ψ̃|² ds = Σ_j c_j².
+    fn mean_masses(&self, v: MatRef<'_, f64>) -> Vec<f64> {
+        (0..v.ncols()).map(|j| (0..v.nrows()).map(|i| v[(i, j)] * v[(i, j)]).sum()).collect()
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::basis::{Basis, FourierGrid};
+    use crate::linalg::generalized::lowest_generalized;
+    use crate::model::stack::{Layer, MEV_PER_NM_PER_KV_CM};
+    use faer::Par;
     use std::time::Instant;
+
+    fn problem(stack: &Heterostructure, grid: &FourierGrid) -> LayeredProblem {
+        LayeredProblem::new(Arc::new(LayeredBasis::new(stack, grid).unwrap()), Units::Semiconductor).unwrap()
+    }
+
+    /// Lowest pairs by the library's dense generalized solver (B-orthonormal vectors),
+    /// signs by the basis' convention (as `eigen::solve` applies them).
+    fn solve_dense(p: &LayeredProblem, count: usize) -> (Vec<f64>, Mat<f64>) {
+        let (e, mut v) = lowest_generalized(p.dense_a(), p.dense_b().unwrap().as_ref(), count, Par::Seq).unwrap();
+        crate::basis::fix_signs(p.basis().as_ref(), &mut v);
+        (e, v)
+    }
 
     #[allow(non_snake_case)]
     fn C() -> f64 {
@@ -1076,8 +632,8 @@ mod tests {
         let mut errs = vec![];
         println!("   N   | max rel err (mass coordinate) | order | z-collocation rel err (E0)");
         for &n in &sizes {
-            let p = LayeredProblem::new(&stack, &grid(-10.0, 70.0, n), Units::Semiconductor).unwrap();
-            let (e, _) = p.solve_dense(exact.len() + 1, Par::Seq).unwrap();
+            let p = problem(&stack, &grid(-10.0, 70.0, n));
+            let (e, _) = solve_dense(&p, exact.len() + 1);
             assert!(e[exact.len()] > v0 - 1e-6, "one level too many below the barrier top");
             let per: Vec<f64> = exact.iter().zip(&e).map(|(x, y)| ((y - x) / x).abs()).collect();
             let err = per.iter().cloned().fold(0.0, f64::max);
@@ -1086,14 +642,14 @@ mod tests {
             let g = Arc::new(grid(-10.0, 70.0, n));
             let pot = stack.potential(g.x());
             let mass = stack.mass(g.x());
-            let h = crate::hamiltonian::Hamiltonian::new(
+            let h = crate::problem::Hamiltonian::new(
                 crate::basis::BasisRef::Fourier(g),
                 pot,
-                crate::hamiltonian::Mass::Profile(mass),
+                crate::problem::Mass::Profile(mass),
                 Units::Semiconductor,
             )
             .unwrap();
-            let (ez, _) = crate::eigen::dense::eigh(h.matrix().as_ref(), Par::Seq).unwrap();
+            let (ez, _) = crate::linalg::dense::eigh(h.matrix().as_ref(), Par::Seq).unwrap();
             let ord = errs.last().map(|&prev: &f64| (prev / err).ln() / ((n - 1) as f64 / ((n - 1) / 2) as f64).ln());
             println!(
                 "{n:6} | {err:29.3e} | {:5} | {:.3e}",
@@ -1116,9 +672,9 @@ mod tests {
         let m = 0.067;
         let stack = well_stack(20.0, 10.0, m, m, 300.0, 0.0);
         let n = 257;
-        let p = LayeredProblem::new(&stack, &grid(-15.0, 65.0, n), Units::Semiconductor).unwrap();
-        let (e, v) = p.solve_dense(n, Par::Seq).unwrap();
-        let z = p.position_matrix(v.as_ref()).unwrap();
+        let p = problem(&stack, &grid(-15.0, 65.0, n));
+        let (e, v) = solve_dense(&p, n);
+        let z = p.position(v.as_ref());
         let mut partial = 0.0;
         let mut bound_sum = 0.0;
         for f in 1..n {
@@ -1140,9 +696,9 @@ mod tests {
         // for states of equal parity. Symmetric stack and symmetric box, mass steps.
         let stack = well_stack(15.0, 8.0, 0.067, 0.092, 250.0, 0.0);
         let zc = stack.center();
-        let p = LayeredProblem::new(&stack, &grid(-10.0, 48.0, 257), Units::Semiconductor).unwrap();
-        let (_, v) = p.solve_dense(6, Par::Seq).unwrap();
-        let z = p.position_matrix(v.as_ref()).unwrap();
+        let p = problem(&stack, &grid(-10.0, 48.0, 257));
+        let (_, v) = solve_dense(&p, 6);
+        let z = p.position(v.as_ref());
         let mut worst: f64 = 0.0;
         for i in 0..6 {
             for j in 0..6 {
@@ -1170,21 +726,21 @@ mod tests {
         let r1 = (4.0 * fd[1] - fd[0]) / 3.0;
         let r2 = (4.0 * fd[2] - fd[1]) / 3.0;
         println!("FD: {fd:?}; Richardson {r1:.10} {r2:.10}");
-        let p = LayeredProblem::new(&stack, &grid(a0, a1, 1025), Units::Semiconductor).unwrap();
-        let (e, v) = p.solve_dense(2, Par::Seq).unwrap();
+        let p = problem(&stack, &grid(a0, a1, 1025));
+        let (e, v) = solve_dense(&p, 2);
         let rel = ((e[0] - r2) / r2).abs();
-        let p0 = LayeredProblem::new(&well_stack(20.0, 10.0, 0.067, 0.092, 300.0, 0.0), &grid(a0, a1, 1025), Units::Semiconductor).unwrap();
-        let (e0, _) = p0.solve_dense(1, Par::Seq).unwrap();
+        let p0 = problem(&well_stack(20.0, 10.0, 0.067, 0.092, 300.0, 0.0), &grid(a0, a1, 1025));
+        let (e0, _) = solve_dense(&p0, 1);
         println!("Stark: E0(20 kV/cm) = {:.8} meV (FD {r2:.8}), rel {rel:.2e}; shift {:.5} meV", e[0], e[0] - e0[0]);
         assert!(rel < 1e-5);
         assert!(e[0] < e0[0], "quadratic Stark shift lowers the ground state");
 
         // Hellmann-Feynman (Feynman 1939): dE_0/dF = 0.1·⟨0|clamp(z) − z_c|0⟩ meV per kV/cm;
         // the clamp matters only in the padding where ψ is negligible.
-        let z = p.position_matrix(v.as_ref()).unwrap();
+        let z = p.position(v.as_ref());
         let de = |f: f64| {
             let s = well_stack(20.0, 10.0, 0.067, 0.092, 300.0, f);
-            LayeredProblem::new(&s, &grid(a0, a1, 513), Units::Semiconductor).unwrap().solve_dense(1, Par::Seq).unwrap().0[0]
+            solve_dense(&problem(&s, &grid(a0, a1, 513)), 1).0[0]
         };
         let d = 0.25;
         let slope = (de(20.0 + d) - de(20.0 - d)) / (2.0 * d);
@@ -1201,11 +757,6 @@ mod tests {
         check::<Heterostructure>();
     }
 
-    fn lcg(seed: &mut u64) -> f64 {
-        *seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-        ((*seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
-    }
-
     #[test]
     fn heterostructure_matrix_free_equals_dense_and_matrices_are_spd() {
         // Algebraic consistency (circulant embedding of Toeplitz matrices, e.g. Golub & Van Loan §4.7).
@@ -1215,14 +766,15 @@ mod tests {
         )
         .unwrap();
         for n in [64usize, 65, 30, 31] {
-            let p = LayeredProblem::new(&stack, &grid(-6.0, 33.0, n), Units::Semiconductor).unwrap();
-            let a = p.matrix_a().unwrap();
-            let b = p.matrix_b().unwrap();
+            let p = problem(&stack, &grid(-6.0, 33.0, n));
+            let a = p.dense_a();
+            let b = p.dense_b().unwrap();
             let ncols = 3;
-            let mut seed = 7 + n as u64;
-            let x: Vec<f64> = (0..n * ncols).map(|_| lcg(&mut seed)).collect();
-            let ya = p.try_apply_a(&x, ncols).unwrap();
-            let yb = p.try_apply_b(&x, ncols).unwrap();
+            let mut rng = crate::linalg::rng::Rng::new(7 + n as u64);
+            let x: Vec<f64> = (0..n * ncols).map(|_| 0.5 * rng.symmetric()).collect();
+            let (mut ya, mut yb) = (vec![0.0; n * ncols], vec![0.0; n * ncols]);
+            p.apply_a(&x, &mut ya, ncols);
+            p.apply_b(&x, &mut yb, ncols);
             let (mut ea, mut eb, mut na, mut nb) = (0.0f64, 0.0f64, 0.0f64, 0.0f64);
             for j in 0..ncols {
                 for i in 0..n {
@@ -1249,10 +801,10 @@ mod tests {
             let bsym = (0..n).flat_map(|i| (0..n).map(move |j| (i, j))).map(|(i, j)| (bc[i * n + j] - bc[j * n + i]).abs()).fold(0.0, f64::max);
             assert!(asym <= 1e-10 * na && bsym <= 1e-12, "asym {asym:e} bsym {bsym:e}");
             // B positive definite, spectrum inside [1/max m, 1/min m] (Galerkin projection of 1/m).
-            let (lb, _) = crate::eigen::dense::eigh(b.as_ref(), Par::Seq).unwrap();
+            let (lb, _) = crate::linalg::dense::eigh(b.as_ref(), Par::Seq).unwrap();
             assert!(lb[0] >= 1.0 / 0.1 - 1e-9 && lb[n - 1] <= 1.0 / 0.06 + 1e-9, "{} {}", lb[0], lb[n - 1]);
             // Eigenvectors B-orthonormal.
-            let (_, v) = p.solve_dense(4, Par::Seq).unwrap();
+            let (_, v) = solve_dense(&p, 4);
             let g = v.transpose() * &b * &v;
             for i in 0..4 {
                 for j in 0..4 {
@@ -1267,20 +819,20 @@ mod tests {
         // ∫|ψ|² dz = 1 by a fine trapezoid rule, and c_j = ψ(z(s_j))·√(S/N) for odd N.
         let stack = well_stack(15.0, 8.0, 0.067, 0.092, 250.0, 30.0);
         for n in [129usize, 128] {
-            let p = LayeredProblem::new(&stack, &grid(-10.0, 48.0, n), Units::Semiconductor).unwrap();
-            let (_, v) = p.solve_dense(3, Par::Seq).unwrap();
+            let p = problem(&stack, &grid(-10.0, 48.0, n));
+            let (_, v) = solve_dense(&p, 3);
             let m = 58000;
             let zs: Vec<f64> = (0..=m).map(|i| -10.0 + 58.0 * i as f64 / m as f64).collect();
-            let psi = p.evaluate(v.as_ref(), &zs).unwrap();
+            let psi = p.basis().evaluate(v.as_ref(), &zs).unwrap();
             for j in 0..3 {
                 let h = 58.0 / m as f64;
                 let norm: f64 = (0..=m).map(|i| psi[(i, j)].powi(2) * if i == 0 || i == m { 0.5 } else { 1.0 }).sum::<f64>() * h;
                 assert!((norm - 1.0).abs() < 1e-6, "N={n} state {j}: norm {norm}");
             }
             if n % 2 == 1 {
-                let zn = p.node_positions();
-                let at = p.evaluate(v.as_ref(), &zn).unwrap();
-                let f = (p.s_length() / n as f64).sqrt();
+                let zn = p.basis().points().to_vec();
+                let at = p.basis().evaluate(v.as_ref(), &zn).unwrap();
+                let f = (p.basis().s_length() / n as f64).sqrt();
                 for i in 0..n {
                     assert!((at[(i, 0)] * f - v[(i, 0)]).abs() < 1e-10);
                 }
@@ -1299,18 +851,16 @@ mod tests {
         assert!(msg(Heterostructure::new(vec![Layer::new(1.0, f64::NAN, 0.1)], 0.0).unwrap_err()).contains("`layers[0].band_edge`"));
         assert!(msg(Heterostructure::new(vec![l], f64::INFINITY).unwrap_err()).contains("`field_kv_cm`"));
         let s = Heterostructure::new(vec![l], 0.0).unwrap();
-        assert!(msg(LayeredProblem::new(&s, &grid(-1.0, 6.0, 16), Units::Natural).unwrap_err()).contains("`units`"));
-        assert!(msg(LayeredProblem::new(&s, &grid(-1.0, 6.0, 2), Units::Semiconductor).unwrap_err()).contains("`grid`"));
-        assert!(msg(LayeredProblem::new(&s, &grid(0.5, 6.0, 16), Units::Semiconductor).unwrap_err()).contains("`grid`"));
-        assert!(msg(LayeredProblem::new(&s, &grid(-1.0, 4.0, 16), Units::Semiconductor).unwrap_err()).contains("`grid`"));
-        let p = LayeredProblem::new(&s, &grid(0.0, 5.0, 16), Units::Semiconductor).unwrap();
-        assert!(p.solve_dense(0, Par::Seq).is_err());
-        assert!(p.solve_dense(17, Par::Seq).is_err());
-        assert!(msg(p.try_apply_a(&[1.0; 5], 1).unwrap_err()).contains("`x`"));
+        let basis = Arc::new(LayeredBasis::new(&s, &grid(-1.0, 6.0, 16)).unwrap());
+        assert!(msg(LayeredProblem::new(basis, Units::Natural).unwrap_err()).contains("`units`"));
+        assert!(msg(LayeredBasis::new(&s, &grid(-1.0, 6.0, 2)).unwrap_err()).contains("`grid`"));
+        assert!(msg(LayeredBasis::new(&s, &grid(0.5, 6.0, 16)).unwrap_err()).contains("`grid`"));
+        assert!(msg(LayeredBasis::new(&s, &grid(-1.0, 4.0, 16)).unwrap_err()).contains("`grid`"));
+        let p = problem(&s, &grid(0.0, 5.0, 16));
         let bad = Mat::<f64>::zeros(5, 1);
-        assert!(msg(p.evaluate(bad.as_ref(), &[1.0]).unwrap_err()).contains("`coefs`"));
+        assert!(msg(p.basis().evaluate(bad.as_ref(), &[1.0]).unwrap_err()).contains("`coefs`"));
         let ok = Mat::<f64>::zeros(16, 1);
-        assert!(msg(p.evaluate(ok.as_ref(), &[f64::NAN]).unwrap_err()).contains("`z`"));
+        assert!(msg(p.basis().evaluate(ok.as_ref(), &[f64::NAN]).unwrap_err()).contains("`z`"));
         // Profiles: right-continuous at interfaces, outer layers continue outside.
         let s2 = Heterostructure::new(vec![Layer::new(2.0, 10.0, 0.1), Layer::new(3.0, 0.0, 0.2)], 10.0).unwrap();
         assert_eq!(s2.mass(&[-5.0, 0.0, 1.999, 2.0, 4.9, 9.0]), vec![0.1, 0.1, 0.1, 0.2, 0.2, 0.2]);
@@ -1319,22 +869,22 @@ mod tests {
     }
 
     #[test]
+    #[ignore = "timings only (printed, not asserted); run with --ignored"]
     fn heterostructure_timings() {
-        // Timings only (printed, not asserted).
         let stack = well_stack(25.0, 10.0, 0.067, 0.092, 300.0, 10.0);
         for n in [513usize, 1025] {
-            let p = LayeredProblem::new(&stack, &grid(-20.0, 80.0, n), Units::Semiconductor).unwrap();
+            let p = problem(&stack, &grid(-20.0, 80.0, n));
             let t = Instant::now();
-            let _ = p.solve_dense(10, Par::rayon(0)).unwrap();
+            let _ = lowest_generalized(p.dense_a(), p.dense_b().unwrap().as_ref(), 10, Par::rayon(0)).unwrap();
             println!("dense solve N = {n}: {:.3} s", t.elapsed().as_secs_f64());
         }
         let n = 1 << 14;
         let t = Instant::now();
-        let p = LayeredProblem::new(&stack, &grid(-20.0, 80.0, n), Units::Semiconductor).unwrap();
+        let p = problem(&stack, &grid(-20.0, 80.0, n));
         let build = t.elapsed().as_secs_f64();
         let ncols = 16;
-        let mut seed = 3;
-        let x: Vec<f64> = (0..n * ncols).map(|_| lcg(&mut seed)).collect();
+        let mut rng = crate::linalg::rng::Rng::new(3);
+        let x: Vec<f64> = (0..n * ncols).map(|_| 0.5 * rng.symmetric()).collect();
         let mut y = vec![0.0; n * ncols];
         p.apply_a(&x, &mut y, ncols);
         let t = Instant::now();
@@ -1343,6 +893,6 @@ mod tests {
             p.apply_a(&x, &mut y, ncols);
         }
         let per = t.elapsed().as_secs_f64() / (reps * ncols) as f64;
-        println!("N = {n}: build {build:.3} s (circulant {}), apply_a {:.1} µs per column", p.circulant_len(), per * 1e6);
+        println!("N = {n}: build {build:.3} s (circulant {}), apply_a {:.1} µs per column", p.l, per * 1e6);
     }
 }

@@ -1,8 +1,7 @@
 //! Full dense diagonalisation through faer's self-adjoint eigensolver
 //! (tridiagonalisation + divide and conquer; level with LAPACK `syevd` here).
 
-use crate::error::{check_memory, NumericalError, Result};
-use crate::hamiltonian::Hamiltonian;
+use crate::error::{NumericalError, Result};
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::linalg::evd::{self_adjoint_evd, self_adjoint_evd_scratch, ComputeEigenvectors, SelfAdjointEvdParams};
 use faer::diag::Diag;
@@ -29,6 +28,17 @@ const PROBE_TOL: f64 = 1e-11;
 /// Dense problems up to this size run sequentially.
 const SEQUENTIAL_MAX: usize = 256;
 
+/// `par` for a dense solve of dimension `n`: sequential up to 256, where the
+/// fork/join of a parallel kernel costs more than it saves (measured: N = 200
+/// Hermite solve 1.6 ms sequential vs 1.9 ms on 2 threads).
+pub fn par_for_dim(n: usize, par: Par) -> Par {
+    if n <= SEQUENTIAL_MAX {
+        Par::Seq
+    } else {
+        par
+    }
+}
+
 /// Tridiagonal blocks below this size are solved by QR inside divide and conquer
 /// (faer's default is 128; 48–64 measured 10–15 % faster at N = 1000 here).
 const DC_RECURSION_THRESHOLD: usize = 64;
@@ -53,12 +63,12 @@ fn backward_error_probe(a: MatRef<'_, f64>, vals: &[f64], u: MatRef<'_, f64>) ->
         return 0.0;
     }
     let scale = vals.iter().fold(0.0_f64, |m, v| m.max(v.abs())).max(f64::MIN_POSITIVE) * (n as f64).sqrt();
-    let mut state = 0x9e37_79b9_7f4a_7c15_u64;
+    let mut rng = super::rng::Rng::new(0x9e37_79b9_7f4a_7c15);
     // Columns 0, 1: g; columns 2, 3: Λg.
     let mut g = Mat::<f64>::zeros(n, 4);
     for c in 0..2 {
         for i in 0..n {
-            let x = gaussian(&mut state);
+            let x = rng.normal();
             g[(i, c)] = x;
             g[(i, c + 2)] = vals[i] * x;
         }
@@ -85,42 +95,14 @@ pub fn symmetric_lower_times(a: MatRef<'_, f64>, x: MatRef<'_, f64>) -> Mat<f64>
     y
 }
 
-/// Standard normal deviate (SplitMix64 + Box-Muller); deterministic.
-fn gaussian(state: &mut u64) -> f64 {
-    let u1 = super::subset::uniform(state).max(f64::MIN_POSITIVE);
-    let u2 = super::subset::uniform(state);
-    (-2.0 * u1.ln()).sqrt() * (2.0 * std::f64::consts::PI * u2).cos()
-}
-
-/// Lowest `count` eigenpairs of `h` by building and diagonalising its dense matrix.
-/// Refuses up front (before allocating) when the matrices would not fit in memory.
-pub fn lowest(h: &Hamiltonian, count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
-    // Matrix, eigenvectors and workspace: about three N×N arrays.
-    check_memory(
-        "method",
-        3 * h.dense_bytes(),
-        "the dense path needs about three N×N float64 arrays; use method=\"iterative\" for the lowest states of a large grid",
-    )?;
-    if let crate::basis::BasisRef::Layered(l) = h.basis() {
-        return l.problem().solve_dense(count, par);
-    }
-    // Below this size the fork/join of a parallel kernel costs more than it saves
-    // (measured: N = 200 Hermite solve 1.6 ms sequential vs 1.9 ms on 2 threads).
-    let par = if h.size() <= SEQUENTIAL_MAX { Par::Seq } else { par };
-    if let Some(blocks) = h.parity_blocks() {
-        return lowest_by_parity(&blocks, count, par);
-    }
-    let m = h.matrix();
-    lowest_of_matrix(m.as_ref(), count, par)
-}
-
-/// Lowest `count` eigenpairs of a matrix given by its even and odd parity blocks
-/// (rows/columns 0, 2, 4, … and 1, 3, 5, … of the full matrix): the lowest
-/// eigenvalues of each block (as many as can be among the lowest `count` of the
-/// union), vectors for those that are, scattered back to full vectors.
-fn lowest_by_parity(blocks: &[Mat<f64>; 2], count: usize, par: Par) -> Result<(Vec<f64>, Mat<f64>)> {
-    let n = blocks[0].nrows() + blocks[1].nrows();
-    // (energy, parity, coefficients in the block)
+/// Lowest `count` eigenpairs of a block-diagonal symmetric matrix given by its
+/// blocks (each read from its lower triangle): the lowest eigenvalues of each block
+/// (as many as can be among the lowest `count` of the union, found by bisection
+/// where the subset solver applies), vectors only for those that are. Returns the
+/// pairs ascending as (eigenvalue, block index, eigenvector within the block); the
+/// caller scatters the block vectors into the full space.
+pub fn lowest_of_blocks(blocks: &[Mat<f64>], count: usize, par: Par) -> Result<Vec<(f64, usize, Vec<f64>)>> {
+    let nb = blocks.len();
     let mut pairs: Vec<(f64, usize, Vec<f64>)> = Vec::with_capacity(count);
     let wanted = |b: &Mat<f64>| count.min(b.nrows());
     let subset = blocks.iter().all(|b| b.nrows() >= 2 && wanted(b) * super::subset::MAX_FRACTION <= b.nrows());
@@ -128,61 +110,54 @@ fn lowest_by_parity(blocks: &[Mat<f64>; 2], count: usize, par: Par) -> Result<(V
         if subset { blocks.iter().map(|b| super::subset::Reduction::new(b.as_ref(), par)).collect() } else { None };
     let mut done = false;
     if let Some(red) = reductions {
-        // Eigenvalues of both blocks first (cheap), then vectors only for the
-        // `count` lowest of the union. Parities usually alternate up the spectrum,
-        // so start with about half of `count` from each block and take more from a
-        // block while its highest value so far is still among the lowest `count`.
-        let mut k = [0, 1].map(|p| (count / 2 + 2).min(wanted(&blocks[p])));
+        // Eigenvalues of every block first (cheap), then vectors only for the `count`
+        // lowest of the union. Start with about count/nb + 2 values per block and take
+        // more from a block while its highest value so far is still among the lowest.
+        let mut k: Vec<usize> = blocks.iter().map(|b| (count / nb + 2).min(wanted(b))).collect();
         let vals: Vec<Vec<f64>> = loop {
-            let vals: Vec<Vec<f64>> = (0..2).map(|p| red[p].lowest_values(k[p])).collect();
+            let vals: Vec<Vec<f64>> = (0..nb).map(|p| red[p].lowest_values(k[p])).collect();
             let mut all: Vec<f64> = vals.iter().flatten().copied().collect();
             all.sort_by(f64::total_cmp);
             let threshold = all[count.min(all.len()) - 1];
-            let more = [0, 1].map(|p| k[p] < wanted(&blocks[p]) && vals[p].last().is_some_and(|&v| v <= threshold));
+            let more: Vec<bool> = (0..nb).map(|p| k[p] < wanted(&blocks[p]) && vals[p].last().is_some_and(|&v| v <= threshold)).collect();
             if !more.contains(&true) {
                 break vals;
             }
-            for p in 0..2 {
+            for p in 0..nb {
                 if more[p] {
-                    k[p] = (k[p] + count / 4 + 2).min(wanted(&blocks[p]));
+                    k[p] = (k[p] + count / (2 * nb) + 2).min(wanted(&blocks[p]));
                 }
             }
         };
         let mut merged: Vec<(f64, usize)> = vals.iter().enumerate().flat_map(|(p, v)| v.iter().map(move |&e| (e, p))).collect();
         merged.sort_by(|a, b| a.0.total_cmp(&b.0));
         merged.truncate(count);
-        let taken = [0, 1].map(|p| merged.iter().filter(|m| m.1 == p).count());
         done = true;
-        for p in 0..2 {
-            if taken[p] == 0 {
+        for p in 0..nb {
+            let taken = merged.iter().filter(|m| m.1 == p).count();
+            if taken == 0 {
                 continue;
             }
-            match red[p].vectors(blocks[p].as_ref(), &vals[p][..taken[p]], par) {
-                Some(v) => pairs.extend((0..taken[p]).map(|j| (vals[p][j], p, v.col(j).iter().copied().collect()))),
+            match red[p].vectors(blocks[p].as_ref(), &vals[p][..taken], par) {
+                Some(v) => pairs.extend((0..taken).map(|j| (vals[p][j], p, v.col(j).iter().copied().collect()))),
                 None => done = false,
             }
         }
     }
     if !done {
         pairs.clear();
-        for (parity, b) in blocks.iter().enumerate() {
+        for (p, b) in blocks.iter().enumerate() {
             let k = wanted(b);
             if k == 0 {
                 continue;
             }
             let (vals, v) = lowest_of_matrix(b.as_ref(), k, par)?;
-            pairs.extend(vals.into_iter().enumerate().map(|(j, e)| (e, parity, v.col(j).iter().copied().collect())));
+            pairs.extend(vals.into_iter().enumerate().map(|(j, e)| (e, p, v.col(j).iter().copied().collect())));
         }
     }
     pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
     pairs.truncate(count);
-    let mut vectors = Mat::<f64>::zeros(n, count);
-    for (j, (_, parity, v)) in pairs.iter().enumerate() {
-        for (r, x) in v.iter().enumerate() {
-            vectors[(2 * r + parity, j)] = *x;
-        }
-    }
-    Ok((pairs.into_iter().map(|p| p.0).collect(), vectors))
+    Ok(pairs)
 }
 
 /// Lowest `count` eigenpairs of a symmetric matrix (lower triangle read): the

@@ -21,11 +21,11 @@ pub mod codata2018 {
     /// Reduced Planck constant ħ = h/2π, J s (exact).
     pub const HBAR: f64 = PLANCK / (2.0 * std::f64::consts::PI);
     /// Electron mass, kg.
-    pub const ELECTRON_MASS: f64 = 9.109_383_7015e-31;
+    pub const ELECTRON_MASS: f64 = 9.109_383_701_5e-31;
     /// Elementary charge, C (exact).
     pub const ELEMENTARY_CHARGE: f64 = 1.602_176_634e-19;
     /// Hartree energy, J.
-    pub const HARTREE: f64 = 4.359_744_722_2071e-18;
+    pub const HARTREE: f64 = 4.359_744_722_207_1e-18;
     /// Bohr radius, m.
     pub const BOHR_RADIUS: f64 = 5.291_772_109_03e-11;
 }

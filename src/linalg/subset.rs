@@ -136,11 +136,11 @@ impl Tridiagonal {
         let n = d.len();
         let radius = |i: usize| (if i > 0 { e[i - 1].abs() } else { 0.0 }) + (if i + 1 < n { e[i].abs() } else { 0.0 });
         let (mut lo, mut hi, mut norm) = (f64::INFINITY, f64::NEG_INFINITY, 0.0_f64);
-        for i in 0..n {
+        for (i, &di) in d.iter().enumerate() {
             let r = radius(i);
-            lo = lo.min(d[i] - r);
-            hi = hi.max(d[i] + r);
-            norm = norm.max(d[i].abs() + r);
+            lo = lo.min(di - r);
+            hi = hi.max(di + r);
+            norm = norm.max(di.abs() + r);
         }
         let e2: Vec<f64> = e.iter().map(|x| x * x).collect();
         let emax2 = e2.iter().cloned().fold(0.0, f64::max);
@@ -220,7 +220,7 @@ impl Tridiagonal {
         let eps_norm = f64::EPSILON * self.norm.max(f64::MIN_POSITIVE);
         let mut lu = BandLu::new(n);
         let mut x = vec![0.0; n];
-        let mut state = 0x2545_f491_4f6c_dd1d_u64;
+        let mut rng = super::rng::Rng::new(0x2545_f491_4f6c_dd1d);
         let mut cluster_start = 0;
         let mut prev_shift = f64::NEG_INFINITY;
         for j in 0..k {
@@ -234,7 +234,7 @@ impl Tridiagonal {
             prev_shift = shift;
             lu.factor(&self.d, &self.e, shift, eps_norm);
             for xi in x.iter_mut() {
-                *xi = uniform(&mut state) - 0.5;
+                *xi = 0.5 * rng.symmetric();
             }
             // Residual of the normalised iterate is ≤ 1/growth; stop two sweeps
             // after it reaches the roundoff level (as dstein's extra iterations).
@@ -381,15 +381,6 @@ fn norm2(x: &[f64]) -> f64 {
         return m;
     }
     m * x.iter().map(|v| (v / m) * (v / m)).sum::<f64>().sqrt()
-}
-
-/// Uniform deviate in [0, 1) (SplitMix64); deterministic.
-pub(crate) fn uniform(state: &mut u64) -> f64 {
-    *state = state.wrapping_add(0x9e37_79b9_7f4a_7c15);
-    let mut z = *state;
-    z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-    ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
 }
 
 #[cfg(test)]

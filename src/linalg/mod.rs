@@ -1,0 +1,52 @@
+//! Linear algebra that sees only matrices and operators: no basis, Hamiltonian,
+//! units or physics. Everything above (problems, spectra, propagators) calls in here.
+//!
+//! * [`dense`]: all eigenpairs of a dense symmetric matrix (faer, with a backward-error
+//!   probe and a QR fallback), the lowest pairs of a matrix or of independent blocks.
+//! * [`subset`]: the lowest pairs only (tridiagonalisation, Sturm multisection,
+//!   inverse iteration, verification).
+//! * [`generalized`]: A x = λ B x with B symmetric positive definite, by Cholesky reduction.
+//! * [`lobpcg`]: the matrix-free block eigensolver and its operator/preconditioner traits.
+//! * [`rng`]: the one pseudo-random generator.
+
+pub mod dense;
+pub mod generalized;
+pub mod lobpcg;
+pub mod rng;
+pub mod subset;
+
+use faer::Mat;
+
+/// Parallelism for a dense kernel of about `flops` floating-point operations:
+/// sequential below 2·10⁷ (measured: rayon's fork/join then costs 50–100 µs, more
+/// than a 200×210×20 product takes), faer's global setting above.
+pub fn par_for(flops: usize) -> faer::Par {
+    if flops < 20_000_000 {
+        faer::Par::Seq
+    } else {
+        faer::get_global_parallelism()
+    }
+}
+
+/// Replace a square matrix by (A + Aᵀ)/2: removes the rounding asymmetry of a
+/// product that is symmetric in exact arithmetic (e.g. Φ·diag(V)·Φᵀ).
+pub fn symmetrize(m: &mut Mat<f64>) {
+    for i in 0..m.nrows() {
+        for j in 0..i {
+            let a = 0.5 * (m[(i, j)] + m[(j, i)]);
+            m[(i, j)] = a;
+            m[(j, i)] = a;
+        }
+    }
+}
+
+/// The columns of `m` laid end to end (the column-major block layout of the
+/// matrix-free operators and of warm starts).
+pub fn column_major(m: &Mat<f64>) -> Vec<f64> {
+    (0..m.ncols()).flat_map(|j| (0..m.nrows()).map(move |i| m[(i, j)])).collect()
+}
+
+/// A column-major block (`nrows` per column) as a matrix.
+pub fn from_column_major(data: &[f64], nrows: usize, ncols: usize) -> Mat<f64> {
+    Mat::from_fn(nrows, ncols, |i, j| data[j * nrows + i])
+}

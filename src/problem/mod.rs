@@ -1,0 +1,93 @@
+//! Problems: the operators a basis and a model give, as the solvers need them.
+//!
+//! Every discretisation's Hamiltonian implements [`DiscreteProblem`]: its dimension,
+//! A (and B for a generalized problem A c = E B c) applied to blocks of vectors, dense
+//! A and B on demand, a norm estimate, a preconditioner, optional symmetry blocks and
+//! an optional coarser copy of itself (for the coarse-grid start). The eigen layer
+//! reads these properties, never the basis type; the [`crate::linalg`] solvers see
+//! only the operators and matrices they produce.
+//!
+//! * [`fourier`]: Fourier-grid Hamiltonian (constant mass or BenDaniel-Duke profile).
+//! * [`hermite`]: Gauss-Hermite function basis (quadrature potential, parity blocks).
+//! * [`layered`]: a heterostructure's exact-layer Galerkin problem in the mass coordinate.
+//! * [`hamiltonian`]: the user-facing [`Hamiltonian`]: basis + potential + mass + units,
+//!   holding one of the above.
+
+pub mod fourier;
+pub mod hamiltonian;
+pub mod hermite;
+pub mod layered;
+
+pub use hamiltonian::{Hamiltonian, Kinetic, Mass};
+
+use crate::linalg::lobpcg::Preconditioner;
+use faer::{Mat, MatRef};
+
+/// What the `method="auto"` rule and the solvers may know about a problem.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Structure {
+    /// A c = E B c with B ≠ I (B symmetric positive definite).
+    pub generalized: bool,
+    /// The matrix-free product costs O(N log N) per vector (FFTs), so a
+    /// matrix-free iteration beats a dense O(N³) solve on large problems.
+    pub fast_apply: bool,
+}
+
+/// A problem whose matrix is block diagonal in a known splitting of the basis
+/// (e.g. parity): the blocks and, for each, the basis indices of its rows.
+pub struct SymmetryBlocks {
+    pub blocks: Vec<Mat<f64>>,
+    pub indices: Vec<Vec<usize>>,
+}
+
+/// Maps one coefficient vector of a coarse problem onto a finer basis.
+pub type Interpolator = Box<dyn Fn(&[f64]) -> Vec<f64> + Send + Sync>;
+
+/// A coarser discretisation of the same problem and the map of its vectors back.
+pub struct Coarse {
+    pub problem: Box<dyn DiscreteProblem>,
+    pub interpolate: Interpolator,
+}
+
+/// The operators of one discretised Hamiltonian (see the module docs). Blocks of
+/// vectors are column-major: column j is `x[j*dim..(j+1)*dim]`.
+pub trait DiscreteProblem: Send + Sync {
+    /// Matrix dimension N.
+    fn dim(&self) -> usize;
+    /// Properties read by the auto rule.
+    fn structure(&self) -> Structure;
+    /// y = A x for `ncols` columns.
+    fn apply_a(&self, x: &[f64], y: &mut [f64], ncols: usize);
+    /// y = B x for `ncols` columns (B = I unless [`Structure::generalized`]).
+    fn apply_b(&self, x: &[f64], y: &mut [f64], ncols: usize) {
+        let n = self.dim() * ncols;
+        y[..n].copy_from_slice(&x[..n]);
+    }
+    /// Dense A (N×N, real symmetric).
+    fn dense_a(&self) -> Mat<f64>;
+    /// Dense B, `None` when B = I.
+    fn dense_b(&self) -> Option<Mat<f64>> {
+        None
+    }
+    /// An upper estimate of the norm of the standard-form operator B^{-1/2} A B^{-1/2}
+    /// (energy units), used for round-off floors.
+    fn norm_estimate(&self) -> f64;
+    /// A symmetric positive definite preconditioner approximating (A − σB)⁻¹.
+    fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
+        None
+    }
+    /// Blocks of A when a symmetry splits it exactly (up to round-off of a dense solve).
+    fn symmetry_blocks(&self) -> Option<SymmetryBlocks> {
+        None
+    }
+    /// The same problem on a basis about `factor` times smaller (at least `min_dim`),
+    /// for a coarse start of an iteration; `None` when it cannot be coarsened.
+    fn coarsened(&self, min_dim: usize) -> Option<Coarse> {
+        let _ = min_dim;
+        None
+    }
+    /// ⟨i|x|j⟩ of the states in the columns of `v` (B-orthonormal), length units.
+    fn position_matrix(&self, v: MatRef<'_, f64>) -> Mat<f64>;
+    /// ⟨i|m(x)|i⟩ of the states in the columns of `v` (mass units).
+    fn mean_masses(&self, v: MatRef<'_, f64>) -> Vec<f64>;
+}
