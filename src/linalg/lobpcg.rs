@@ -831,23 +831,23 @@ mod tests {
     }
 
     /// H = -1/2 d^2/dx^2 + V(x) on a periodic Fourier grid, applied by FFT.
-    struct Hamiltonian {
+    struct GridOperator {
         grid: Grid,
         v: Vec<f64>,
     }
 
-    impl Hamiltonian {
+    impl GridOperator {
         fn new(n: usize, l: f64, v: impl Fn(f64) -> f64) -> Self {
             let grid = Grid::new(n, l);
             let v = grid.x.iter().map(|&x| v(x)).collect();
-            Hamiltonian { grid, v }
+            GridOperator { grid, v }
         }
         fn dense(&self) -> Mat<f64> {
             dense_of(self)
         }
     }
 
-    impl SymmetricOperator for Hamiltonian {
+    impl SymmetricOperator for GridOperator {
         fn dim(&self) -> usize {
             self.grid.n
         }
@@ -949,7 +949,7 @@ mod tests {
     }
 
     fn harmonic(n: usize, l: f64, cap: f64, count: usize, c: f64) -> (IterativeResult, f64) {
-        let h = Hamiltonian::new(n, l, |x| 0.5 * x.abs().min(cap).powi(2));
+        let h = GridOperator::new(n, l, |x| 0.5 * x.abs().min(cap).powi(2));
         let p = KineticPrecond { grid: &h.grid, c };
         let t = Instant::now();
         let r = lobpcg(&h, None, Some(&p), &opts(count, 1e-10)).unwrap();
@@ -990,7 +990,7 @@ mod tests {
     #[test]
     fn poschl_teller_lambda_4() {
         let lam = 4.0_f64;
-        let h = Hamiltonian::new(1024, 60.0, |x| -0.5 * lam * (lam + 1.0) / x.cosh().powi(2));
+        let h = GridOperator::new(1024, 60.0, |x| -0.5 * lam * (lam + 1.0) / x.cosh().powi(2));
         let p = KineticPrecond { grid: &h.grid, c: 5.0 };
         let r = lobpcg(&h, None, Some(&p), &opts(4, 1e-10)).unwrap();
         check_result(&h, None, &r, 1e-10);
@@ -1003,8 +1003,8 @@ mod tests {
 
     /// Quartic double well h (1 - (x/d)^2)^2 with barrier h = 18, minima at +-3:
     /// the lowest tunnelling pairs are split by ~1e-9 .. 1e-5.
-    fn double_well(n: usize) -> Hamiltonian {
-        Hamiltonian::new(n, 16.0, |x| 18.0 * (1.0 - (x / 3.0).powi(2)).powi(2))
+    fn double_well(n: usize) -> GridOperator {
+        GridOperator::new(n, 16.0, |x| 18.0 * (1.0 - (x / 3.0).powi(2)).powi(2))
     }
 
     // Near-degenerate pairs (symmetric double well) against a dense
@@ -1103,7 +1103,7 @@ mod tests {
     // E = k^2/2 for k = 0, +-1, +-2 (textbook), i.e. 0, 1/2, 1/2, 2, 2.
     #[test]
     fn free_particle_exact_degeneracy() {
-        let h = Hamiltonian::new(256, 2.0 * std::f64::consts::PI, |_| 0.0);
+        let h = GridOperator::new(256, 2.0 * std::f64::consts::PI, |_| 0.0);
         let p = KineticPrecond { grid: &h.grid, c: 1.0 };
         let r = lobpcg(&h, None, Some(&p), &opts(5, 1e-11)).unwrap();
         check_result(&h, None, &r, 1e-11);
@@ -1237,7 +1237,7 @@ mod tests {
     fn timing(n: usize, count: usize) {
         // HO on [-20, 20) extended with a flat V = 200 beyond |x| = 20 (dx = 40/2048)
         let l = 40.0 * n as f64 / 2048.0;
-        let h = Hamiltonian::new(n, l, |x| 0.5 * x.abs().min(20.0).powi(2));
+        let h = GridOperator::new(n, l, |x| 0.5 * x.abs().min(20.0).powi(2));
         let p = KineticPrecond { grid: &h.grid, c: 50.0 };
         let t = Instant::now();
         let r = lobpcg(&h, None, Some(&p), &opts(count, 1e-10)).unwrap();

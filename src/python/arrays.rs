@@ -2,7 +2,7 @@
 //! arrays, non-contiguous or read-only arrays are converted), reject complex or
 //! non-numeric input with a TypeError naming the argument.
 
-use numpy::{PyArray1, PyArray2, PyArrayMethods, PyUntypedArrayMethods};
+use numpy::{AllowTypeChange, PyArray2, PyArrayLikeDyn, PyUntypedArrayMethods};
 use pyo3::exceptions::{PyTypeError, PyValueError};
 use pyo3::prelude::*;
 use pyo3::types::PyAnyMethods;
@@ -28,17 +28,22 @@ fn type_name(obj: &Bound<'_, PyAny>) -> String {
     obj.get_type().name().map(|n| n.to_string()).unwrap_or_else(|_| "an unknown type".into())
 }
 
+/// A real array-like as float64 (rust-numpy's `PyArrayLike`, after the dtype check
+/// above so that complex input is refused instead of cast), with its shape checked
+/// to have `ndim` dimensions.
+fn real_array<'py>(obj: &Bound<'py, PyAny>, name: &str, ndim: usize) -> PyResult<PyArrayLikeDyn<'py, f64, AllowTypeChange>> {
+    let (arr, _) = as_ndarray(obj, name, false)?;
+    let a: PyArrayLikeDyn<'py, f64, AllowTypeChange> = arr.extract().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    if a.ndim() != ndim {
+        return Err(PyValueError::new_err(format!("`{name}` must be {ndim}-dimensional; got shape {:?}", a.shape())));
+    }
+    Ok(a)
+}
+
 /// A 1-D real array of length `expected` (if given) as a Vec<f64>.
 pub fn vec_f64(obj: &Bound<'_, PyAny>, name: &str, expected: Option<usize>) -> PyResult<Vec<f64>> {
-    let (arr, _) = as_ndarray(obj, name, false)?;
-    let ndim: usize = arr.getattr("ndim")?.extract()?;
-    if ndim != 1 {
-        let shape: String = arr.getattr("shape")?.str()?.extract()?;
-        return Err(PyValueError::new_err(format!("`{name}` must be 1-dimensional; got shape {shape}")));
-    }
-    let arr = arr.call_method1("astype", ("float64",))?;
-    let arr = arr.cast_into::<PyArray1<f64>>().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
-    let v = arr.readonly().as_array().to_vec();
+    let a = real_array(obj, name, 1)?;
+    let v = a.as_array().iter().copied().collect::<Vec<f64>>();
     if let Some(n) = expected {
         if v.len() != n {
             return Err(PyValueError::new_err(format!("`{name}` must have length {n}; got length {}", v.len())));
@@ -61,23 +66,12 @@ pub fn vec_f64_or_complex(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<f
 
 /// A 2-D real array as (rows, cols, row-major data).
 pub fn mat_f64(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(usize, usize, Vec<f64>)> {
-    let (arr, _) = as_ndarray(obj, name, false)?;
-    let ndim: usize = arr.getattr("ndim")?.extract()?;
-    if ndim != 2 {
-        let shape: String = arr.getattr("shape")?.str()?.extract()?;
-        return Err(PyValueError::new_err(format!("`{name}` must be 2-dimensional; got shape {shape}")));
-    }
-    let kwargs = pyo3::types::PyDict::new(arr.py());
-    kwargs.set_item("copy", false)?;
-    let arr = arr.call_method("astype", ("float64",), Some(&kwargs))?;
-    let arr = arr.cast_into::<PyArray2<f64>>().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
-    let ro = arr.readonly();
-    let shape = ro.shape();
-    let (r, c) = (shape[0], shape[1]);
+    let a = real_array(obj, name, 2)?;
+    let (r, c) = (a.shape()[0], a.shape()[1]);
     // Row-major data: one memcpy when the array is C-contiguous.
-    let data = match ro.as_slice() {
+    let data = match a.as_slice() {
         Ok(sl) => sl.to_vec(),
-        Err(_) => ro.as_array().iter().cloned().collect(),
+        Err(_) => a.as_array().iter().cloned().collect(),
     };
     Ok((r, c, data))
 }
@@ -134,15 +128,11 @@ pub fn to_usize(obj: &Bound<'_, PyAny>, name: &str, min: usize, max: usize) -> P
 /// A real or complex array of any shape as (shape, complex128 data in C order).
 pub fn complex_array(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<usize>, Vec<num_complex::Complex64>)> {
     let (arr, _) = as_ndarray(obj, name, true)?;
-    let arr = arr.call_method1("astype", ("complex128",))?;
-    let np = obj.py().import("numpy")?;
-    let arr = np.call_method1("ascontiguousarray", (arr,))?;
-    let shape: Vec<usize> = arr.getattr("shape")?.extract()?;
-    let flat = arr.call_method0("ravel")?;
-    let flat = flat
-        .cast_into::<PyArray1<num_complex::Complex64>>()
-        .map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
-    let data = flat.readonly().as_array().to_vec();
+    let a: PyArrayLikeDyn<'_, num_complex::Complex64, AllowTypeChange> =
+        arr.extract().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    let shape = a.shape().to_vec();
+    // C order: `iter` walks the logical order of any layout.
+    let data: Vec<num_complex::Complex64> = a.as_array().iter().copied().collect();
     if let Some(i) = data.iter().position(|z| !(z.re.is_finite() && z.im.is_finite())) {
         return Err(PyValueError::new_err(format!(
             "`{name}` must contain only finite numbers; found NaN or inf at flat index {i}"

@@ -22,6 +22,11 @@ use std::sync::Arc;
 /// Samples of a potential on the basis points: a vectorised callable f(x) or an array.
 pub fn potential_samples(obj: &Bound<'_, PyAny>, basis: &BasisRef, name: &str) -> PyResult<Vec<f64>> {
     let points = basis.as_dyn().points();
+    if obj.cast::<PyHeterostructure>().is_ok() {
+        return Err(PyTypeError::new_err(format!(
+            "`{name}` is a Heterostructure, which is accepted only as the potential of a Hamiltonian; here `{name}` must be a callable f(x) or an array on basis.x (e.g. stack.potential(x) with a single mass)"
+        )));
+    }
     if obj.is_callable() {
         let x = PyArray1::from_slice(obj.py(), points);
         // An exception raised by the user's callable propagates with its own type,
@@ -576,27 +581,31 @@ pub fn solve_batch(
     let method = Method::parse(method).py(py)?;
     let b = extract_basis(basis, "basis")?;
     let n_points = b.as_dyn().points().len();
-    // An (M, N) array, or a sequence of callables / arrays on basis.x.
-    let rows: Vec<Vec<f64>> = match super::arrays::mat_f64(potentials, "potentials") {
-        Ok((r, c, data)) => {
-            if c != n_points || r == 0 {
-                return Err(pyo3::exceptions::PyValueError::new_err(format!(
-                    "`potentials` must have shape (M, {n_points}) with M >= 1 (samples on basis.x); got ({r}, {c})"
+    // An (M, N) ndarray, or a sequence of callables / arrays on basis.x (decided by type).
+    let is_ndarray = potentials.is_instance(&py.import("numpy")?.getattr("ndarray")?)?;
+    let rows: Vec<Vec<f64>> = if is_ndarray {
+        let (r, c, data) = super::arrays::mat_f64(potentials, "potentials")?;
+        if c != n_points || r == 0 {
+            return Err(pyo3::exceptions::PyValueError::new_err(format!(
+                "`potentials` must have shape (M, {n_points}) with M >= 1 (samples on basis.x); got ({r}, {c})"
+            )));
+        }
+        data.chunks(c).map(|ch| ch.to_vec()).collect()
+    } else {
+        let items = potentials
+            .try_iter()
+            .map_err(|_| PyTypeError::new_err("`potentials` must be an (M, N) array or a sequence of callables/arrays"))?;
+        let mut out = Vec::new();
+        for (i, item) in items.enumerate() {
+            let item = item?;
+            if item.cast::<PyHeterostructure>().is_ok() {
+                return Err(PyTypeError::new_err(format!(
+                    "`potentials[{i}]` is a Heterostructure: a sweep of stacks needs basis=None (each stack gets its own element basis)"
                 )));
             }
-            data.chunks(c).map(|ch| ch.to_vec()).collect()
+            out.push(potential_samples(&item, &b, &format!("potentials[{i}]"))?);
         }
-        Err(_) => {
-            let mut out = Vec::new();
-            for (i, item) in potentials
-                .try_iter()
-                .map_err(|_| PyTypeError::new_err("`potentials` must be an (M, N) array or a sequence of callables/arrays"))?
-                .enumerate()
-            {
-                out.push(potential_samples(&item?, &b, &format!("potentials[{i}]"))?);
-            }
-            out
-        }
+        out
     };
     let m = match mass {
         None => Mass::Uniform(1.0),
