@@ -10,6 +10,7 @@ Model limits: single-particle, single-band effective-mass Schrödinger equation
 
 from specwell._core import (
     METHODS,
+    AccuracyWarning,
     Batch,
     UNITS,
     ConvergenceError,
@@ -30,6 +31,7 @@ from specwell.states import autocorrelation_spectrum, eigenstate, gaussian_packe
 
 __all__ = [
     "METHODS",
+    "AccuracyWarning",
     "Batch",
     "UNITS",
     "ConvergenceError",

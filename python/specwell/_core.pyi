@@ -6,7 +6,7 @@ import numpy as np
 import numpy.typing as npt
 
 __all__ = [
-    "Batch", "ConvergenceError", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
+    "AccuracyWarning", "Batch", "ConvergenceError", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
     "METHODS", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
     "_batch_from_spectra", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
 ]
@@ -24,14 +24,19 @@ class ConvergenceError(RuntimeError):
     energies : list of float
         Best energy estimates when the method stopped.
     residuals : list of float
-        Their residual norms ‖Hψ − Eψ‖.
+        Their residual norms ‖Hψ − Eψ‖ (eigensolvers).
+    rates : list of float
+        |dE/dτ| of each state at the last check (imaginary-time relaxation, instead of residuals).
     iterations : int
-        Iterations performed.
+        Iterations (or imaginary-time steps) performed.
     """
 
     energies: list[float]
     residuals: list[float]
     iterations: int
+
+class AccuracyWarning(UserWarning):
+    """Round-off limits the accuracy of some computed levels (see ``Spectrum.attainable_accuracy``)."""
 
 @final
 class HermiteBasis:
@@ -254,6 +259,15 @@ class Spectrum:
     @property
     def hamiltonian(self) -> Hamiltonian:
         """The Hamiltonian whose eigenpairs these are."""
+    @property
+    def attainable_accuracy(self) -> npt.NDArray[np.float64]:
+        """Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min), shape (count,).
+
+        Above 1e-8, ``solve`` issues a ``specwell.AccuracyWarning``.
+        """
+    @property
+    def note(self) -> Optional[str]:
+        """How the result was produced when the automatic choice changed course, else None."""
     def wavefunctions(self, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) for every state, shape (count, len(x)), normalised ∫|ψ|² dx = 1.
 

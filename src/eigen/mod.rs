@@ -7,7 +7,7 @@
 pub mod iterative;
 
 use crate::basis::{fix_signs, BasisRef};
-use crate::error::{check_memory, InputError, Result};
+use crate::error::{check_memory, Error, InputError, NumericalError, Result};
 use crate::linalg::dense::{lowest_of_blocks, lowest_of_matrix, par_for_dim};
 use crate::linalg::{column_major, generalized};
 use crate::model::units::Units;
@@ -66,6 +66,24 @@ pub fn auto_choice(p: &dyn DiscreteProblem, count: usize) -> Method {
     }
 }
 
+/// Batches start matrix-free above this size: each item is warm-started from its
+/// neighbours' vectors, so an item costs a few LOBPCG steps (see [`batch_auto_choice`]).
+/// Measured (200-field sweep of a harmonic well, 5 states, 2 cores): dense/iterative
+/// 34/44 ms at N = 48, 57/40 ms at 64, 105/39 ms at 96, 5.9 s/0.15 s at 512.
+pub const BATCH_AUTO_DENSE_MAX: usize = 56;
+
+/// The rule of `method="auto"` in [`solve_batch`]: as [`auto_choice`], but matrix-free
+/// from [`BATCH_AUTO_DENSE_MAX`] functions, because the sweep's warm starts make each
+/// item far cheaper than a cold iterative solve.
+pub fn batch_auto_choice(p: &dyn DiscreteProblem, count: usize) -> Method {
+    let n = p.dim();
+    if p.structure().fast_apply && n > BATCH_AUTO_DENSE_MAX && 4 * count <= n {
+        Method::Iterative
+    } else {
+        Method::Dense
+    }
+}
+
 /// Options of [`solve`].
 #[derive(Debug, Clone)]
 pub struct SolveOptions {
@@ -93,7 +111,11 @@ impl SolveOptions {
 /// * `vectors` (N × count): orthonormal (B-orthonormal for heterostructures)
 ///   coefficient vectors in the basis; the sign of each is fixed by [`fix_signs`]
 ///   (positive in the leftmost region where |ψ| exceeds 1 % of its maximum);
-/// * `residuals`: ‖Hψ − EBψ‖ (coefficient 2-norm), energy units.
+/// * `residuals`: ‖Hψ − EBψ‖ (coefficient 2-norm), energy units;
+/// * `attainable`: the relative accuracy round-off allows each level,
+///   ε‖H‖/max(|E_i|, E_max − E_min) (a backward-stable solve perturbs H by ~ε‖H‖);
+/// * `method`: the method that produced the pairs (`Dense` also when the automatic
+///   choice started iteratively and finished densely; `note` then says why).
 #[derive(Debug, Clone)]
 pub struct Spectrum {
     pub hamiltonian: Arc<Hamiltonian>,
@@ -102,6 +124,20 @@ pub struct Spectrum {
     pub residuals: Vec<f64>,
     pub method: Method,
     pub iterations: usize,
+    pub attainable: Vec<f64>,
+    pub note: Option<String>,
+}
+
+/// Levels whose attainable relative accuracy is worse than this carry an accuracy
+/// warning: round-off then limits them to fewer than 8 significant digits.
+pub const ACCURACY_WARN: f64 = 1e-8;
+
+/// ε‖H‖/max(|E_i|, E_max − E_min) per level (see [`Spectrum::attainable`]).
+pub fn attainable_accuracy(norm: f64, energies: &[f64]) -> Vec<f64> {
+    let lo = energies.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = energies.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+    let spread = (hi - lo).max(0.0);
+    energies.iter().map(|e| f64::EPSILON * norm / e.abs().max(spread).max(f64::MIN_POSITIVE)).collect()
 }
 
 impl Spectrum {
@@ -130,11 +166,28 @@ impl Spectrum {
         crate::error::check_finite("energies", &energies)?;
         crate::error::check_finite("residuals", &residuals)?;
         crate::error::check_finite("vectors", &column_major(&vectors))?;
-        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations })
+        let attainable = attainable_accuracy(hamiltonian.norm_estimate(), &energies);
+        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None })
     }
 
     pub fn count(&self) -> usize {
         self.energies.len()
+    }
+
+    /// A warning when round-off limits some level to fewer than 8 significant digits
+    /// ([`ACCURACY_WARN`]), naming the levels, the norm and what to do.
+    pub fn accuracy_warning(&self) -> Option<String> {
+        let bad: Vec<usize> = (0..self.count()).filter(|&i| self.attainable[i] > ACCURACY_WARN).collect();
+        if bad.is_empty() {
+            return None;
+        }
+        let worst = bad.iter().map(|&i| self.attainable[i]).fold(0.0, f64::max);
+        Some(format!(
+            "round-off limits levels {bad:?} to a relative accuracy of about {worst:.1e}: ‖H‖ ≈ {:.2e} dwarfs the energies. \
+             Typical causes: a HermiteBasis whose quadrature nodes reach a steep wall (Morse, exponential or hard walls) \
+             or a grid box far larger than the states need. Shrink the box or the basis, or use an ElementBasis with a breakpoint at the wall.",
+            self.hamiltonian.norm_estimate()
+        ))
     }
     pub fn basis(&self) -> &BasisRef {
         self.hamiltonian.basis()
@@ -212,6 +265,12 @@ pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Re
     lowest_of_matrix(p.dense_a().as_ref(), count, par)
 }
 
+/// Whether the dense path's matrices (about five N×N arrays) fit in available memory.
+pub fn dense_fits(p: &dyn DiscreteProblem) -> bool {
+    let n = p.dim() as u64;
+    check_memory("method", 5 * n * n * 8, "").is_ok()
+}
+
 /// Lowest `opts.count` eigenpairs of `h`.
 pub fn solve(h: &Arc<Hamiltonian>, opts: &SolveOptions) -> Result<Spectrum> {
     solve_with_par(h, opts, faer::get_global_parallelism())
@@ -220,32 +279,48 @@ pub fn solve(h: &Arc<Hamiltonian>, opts: &SolveOptions) -> Result<Spectrum> {
 /// [`solve`] with explicit parallelism for the dense kernels (`Par::Seq` inside
 /// an outer parallel loop such as [`solve_batch`]).
 pub fn solve_with_par(h: &Arc<Hamiltonian>, opts: &SolveOptions, par: faer::Par) -> Result<Spectrum> {
-    solve_keeping_guards(h, opts, par).map(|(s, _)| s)
+    solve_keeping_guards(h, opts, opts.method.resolve(h.problem(), opts.count), par).map(|(s, _)| s)
 }
 
 /// [`solve_with_par`], also returning the iterative path's guard vectors
 /// (column-major; empty on the dense path) for warm-starting a nearby problem.
-fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, par: faer::Par) -> Result<(Spectrum, Vec<f64>)> {
+/// `method` is the resolved method; with `opts.method == Auto` a stalled iteration
+/// finishes densely when the dense matrices fit.
+fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, method: Method, par: faer::Par) -> Result<(Spectrum, Vec<f64>)> {
     let p = h.problem();
     check_count(opts.count, p.dim())?;
     check_tol(opts.tol)?;
     if let Some(init) = &opts.initial {
         crate::error::check_finite("initial", init)?;
     }
-    let method = opts.method.resolve(p, opts.count);
+    let mut method = method;
+    let mut note = None;
     let (energies, mut vectors, iterations, guards) = match method {
         Method::Dense | Method::Auto => {
             let (e, v) = dense_lowest(p, opts.count, par)?;
             (e, v, 0, Vec::new())
         }
-        Method::Iterative => {
-            let s = iterative::solve(p, opts).map_err(absolute_residuals)?;
-            (s.energies, s.vectors, s.iterations, s.guards)
-        }
+        Method::Iterative => match iterative::solve(p, opts) {
+            Ok(s) => (s.energies, s.vectors, s.iterations, s.guards),
+            // The automatic choice never fails where a dense solve fits: finish densely.
+            Err(Error::Numerical(NumericalError::NotConverged { iterations, residuals, energies, .. }))
+                if opts.method == Method::Auto && dense_fits(p) =>
+            {
+                let worst = residuals.iter().zip(&energies).map(|(r, e)| r * e.abs().max(1.0)).fold(0.0, f64::max);
+                note = Some(format!(
+                    "the iterative path stopped after {iterations} iterations with largest residual {worst:.1e}; finished with the dense solver"
+                ));
+                method = Method::Dense;
+                let (e, v) = dense_lowest(p, opts.count, par)?;
+                (e, v, iterations, Vec::new())
+            }
+            Err(e) => return Err(absolute_residuals(e)),
+        },
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(p, &energies, &vectors);
-    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations };
+    let attainable = attainable_accuracy(p.norm_estimate(), &energies);
+    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, attainable, note };
     Ok((spectrum, guards))
 }
 
@@ -270,9 +345,11 @@ pub fn solve_batch(
     let build = |v: &Vec<f64>| Hamiltonian::new(basis.clone(), v.clone(), mass.clone(), units).map(Arc::new);
     let first = build(&potentials[0])?;
     check_count(opts.count, first.size())?;
-    let method = opts.method.resolve(first.problem(), opts.count);
-    let mut o = opts.clone();
-    o.method = method;
+    let method = match opts.method {
+        Method::Auto => batch_auto_choice(first.problem(), opts.count),
+        m => m,
+    };
+    let o = opts.clone();
     match method {
         Method::Iterative => {
             let threads = rayon::current_num_threads().max(1);
@@ -299,7 +376,7 @@ pub fn solve_batch(
                             start.extend_from_slice(&guards);
                             oi.initial = Some(start);
                         }
-                        let (s, g) = solve_keeping_guards(&build(v)?, &oi, faer::Par::Seq)?;
+                        let (s, g) = solve_keeping_guards(&build(v)?, &oi, method, faer::Par::Seq)?;
                         out.push(s);
                         guards = g;
                     }
@@ -312,7 +389,7 @@ pub fn solve_batch(
             }
             Ok(all)
         }
-        _ => potentials.par_iter().map(|v| solve_with_par(&build(v)?, &o, faer::Par::Seq)).collect(),
+        _ => potentials.par_iter().map(|v| Ok(solve_keeping_guards(&build(v)?, &o, method, faer::Par::Seq)?.0)).collect(),
     }
 }
 

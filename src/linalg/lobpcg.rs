@@ -118,7 +118,8 @@ pub struct IterativeResult {
 pub fn lobpcg_workspace_bytes(dim: usize, count: usize, block_extra: usize, generalized: bool) -> u64 {
     let m = (count as u64).saturating_add(block_extra as u64);
     let nbuf: u64 = if generalized { 3 } else { 2 };
-    let work = nbuf.saturating_mul(dim as u64).saturating_mul(3 * 8).saturating_mul(m);
+    // S, AS (and BS) with 3m columns each, plus the best iterate's m columns.
+    let work = (3 * nbuf + 1).saturating_mul(dim as u64).saturating_mul(8).saturating_mul(m);
     let threads = rayon::current_num_threads() as u64;
     let chunks = threads.saturating_mul(CHUNK as u64 * 3 * 8).saturating_mul(m);
     let small = (3 * m).saturating_mul(3 * m).saturating_mul(70 * 2 * 8);
@@ -136,6 +137,18 @@ const CHUNK: usize = 4096;
 const SVQB_DROP: f64 = 1e-12;
 /// A projected direction is dropped when its B-norm shrank below this fraction.
 const PROJ_DROP: f64 = 1e-10;
+/// Largest deviation of XᵀBX from I tolerated before X is re-orthonormalised.
+const ORTH_TOL: f64 = 1e-10;
+/// Steps between explicit recomputations of AX and BX.
+const REFRESH_EVERY: usize = 25;
+/// The best iterate is replaced when the largest wanted residual drops below this fraction of its.
+const IMPROVEMENT: f64 = 0.5;
+/// Steps without such an improvement that count as a stall.
+const STALL_ITERS: usize = 100;
+/// Residuals this far above the best count as divergence.
+const DIVERGE_FACTOR: f64 = 1e3;
+/// Restarts from the best iterate before a stall ends the iteration.
+const MAX_RESTARTS: usize = 2;
 
 fn fill_random(col: &mut [f64], seed: u64, stream: u64) {
     super::rng::Rng::stream(seed, stream).fill_symmetric(col);
@@ -490,18 +503,58 @@ impl Work<'_> {
                 }
             }
             if cancel && pass < 2 {
+                // The projection cancelled digits: the implicitly updated BW carries the
+                // round-off of the large terms that cancelled (relative error ~ε·‖BW₀‖/‖BW‖),
+                // so recompute it before the next pass (B = I needs nothing).
+                if let (Some(b), Some(bs)) = (self.b, self.bs.as_mut()) {
+                    b.apply(&self.s[w0 * dim..(w0 + nw) * dim], &mut bs[w0 * dim..(w0 + nw) * dim], nw);
+                }
                 continue;
             }
             let dropped: Vec<bool> = (0..nw).map(|j| g[(j, j)].is_nan() || g[(j, j)] <= PROJ_DROP * PROJ_DROP * norms0[j]).collect();
             let t = svqb(&g, &dropped)?;
             transform_in_place(&mut self.s, dim, w0, nw, t.as_ref());
-            if let Some(bs) = self.bs.as_mut() {
-                transform_in_place(bs, dim, w0, nw, t.as_ref());
-            }
             nw = t.ncols();
+            // BW explicitly: SVQB scales nearly dependent directions up (by as much as
+            // SVQB_DROP^-1/2), and with them any round-off an implicit update of BW
+            // would carry; measured on BenDaniel-Duke pencils, that error grew ~3× per
+            // step and broke the B-orthonormality of the whole basis.
+            if let (Some(b), Some(bs)) = (self.b, self.bs.as_mut()) {
+                b.apply(&self.s[w0 * dim..(w0 + nw) * dim], &mut bs[w0 * dim..(w0 + nw) * dim], nw);
+            }
             break;
         }
         Ok(nw)
+    }
+}
+
+/// The best iterate seen: the block X (all m columns, so guards restart too), its Ritz
+/// values and true residuals, and the step it was reached at.
+struct Best {
+    x: Vec<f64>,
+    lambda: Vec<f64>,
+    res: Vec<f64>,
+    score: f64,
+    iter: usize,
+}
+
+impl Best {
+    fn new(dim: usize, m: usize, count: usize) -> Self {
+        Best { x: vec![0.0; dim * m], lambda: vec![0.0; count], res: vec![f64::INFINITY; count], score: f64::INFINITY, iter: 0 }
+    }
+    fn save(&mut self, w: &Work<'_>, res: &[f64], iter: usize) {
+        let n = self.x.len();
+        self.x.copy_from_slice(&w.s[..n]);
+        let count = self.lambda.len();
+        self.lambda.copy_from_slice(&w.lambda[..count]);
+        self.res.copy_from_slice(&res[..count]);
+        self.score = (0..count).map(|j| res[j] * w.lambda[j].abs().max(1.0)).fold(0.0_f64, f64::max);
+        self.iter = iter;
+    }
+    fn restore(&self, w: &mut Work<'_>) {
+        if self.score.is_finite() {
+            w.s[..self.x.len()].copy_from_slice(&self.x);
+        }
     }
 }
 
@@ -605,14 +658,41 @@ pub fn lobpcg(
 
     let mut iter = 0usize;
     let mut fresh = true; // AX, BX recomputed explicitly since the last update
+    let mut since_refresh = 0usize;
+    let mut best = Best::new(dim, m, count);
+    let mut stalls = 0usize;
     loop {
         let res = w.residuals_into_w();
+        // Progress is judged on absolute residuals: relative ones change scale with the
+        // Ritz values themselves, which fall by orders of magnitude from a random start.
+        let score = (0..count).map(|j| res[j] * w.lambda[j].abs().max(1.0)).fold(0.0_f64, f64::max);
+        if fresh && score.is_finite() && score < IMPROVEMENT * best.score {
+            best.save(&w, &res, iter);
+        }
         let converged: Vec<bool> = (0..m).map(|j| j < count && res[j] <= opts.tol).collect();
         let done = converged[..count].iter().all(|&c| c);
-        if done || iter >= opts.max_iter {
+        // Stagnation (no halving of the best residual for STALL_ITERS steps) or divergence
+        // (residuals far above the best, or not finite): restart from the best iterate
+        // with fresh directions once; a second stall ends the iteration.
+        let diverged = !score.is_finite() || score > DIVERGE_FACTOR * best.score;
+        let stalled = iter >= best.iter + STALL_ITERS;
+        if !done && fresh && (diverged || stalled) && iter < opts.max_iter {
+            if stalls < MAX_RESTARTS {
+                stalls += 1;
+                best.restore(&mut w);
+                w.np = 0;
+                w.rebuild_x()?;
+                best.iter = iter;
+                since_refresh = 0;
+                continue;
+            }
+        }
+        let give_up = stalls >= MAX_RESTARTS && (diverged || stalled);
+        if done || iter >= opts.max_iter || give_up {
             if !fresh {
                 w.rebuild_x()?;
                 fresh = true;
+                since_refresh = 0;
                 continue;
             }
             if done {
@@ -632,15 +712,25 @@ pub fn lobpcg(
                     guards,
                 });
             }
-            return Err(NumericalError::NotConverged {
-                iterations: iter,
-                tol: opts.tol,
-                energies: w.lambda[..count].to_vec(),
-                residuals: res[..count].to_vec(),
-            }
-            .into());
+            // Not converged: report the last iterate, or the best one seen when the last
+            // has drifted well above it (true residuals either way).
+            let (energies, residuals) = if score > 10.0 * best.score {
+                (best.lambda.clone(), best.res.clone())
+            } else {
+                (w.lambda[..count].to_vec(), res[..count].to_vec())
+            };
+            return Err(NumericalError::NotConverged { iterations: iter, tol: opts.tol, energies, residuals }.into());
+        }
+        // AX and BX are updated implicitly; recompute them explicitly now and then so
+        // that round-off in the updates cannot accumulate.
+        if since_refresh >= REFRESH_EVERY {
+            w.rebuild_x()?;
+            fresh = true;
+            since_refresh = 0;
+            continue;
         }
         iter += 1;
+        since_refresh += 1;
         fresh = false;
 
         // ---- W = preconditioned residuals of the active columns
@@ -674,6 +764,15 @@ pub fn lobpcg(
         let mut h = hg.pop().expect("H");
         symmetrize(&mut h);
         symmetrize(&mut g);
+        // X must stay B-orthonormal: when round-off in the implicit updates has eroded
+        // it, re-orthonormalise X explicitly and restart the search directions.
+        if max_dev_from_identity(&select(&g, &(0..m).collect::<Vec<_>>())) > ORTH_TOL {
+            w.np = 0;
+            w.rebuild_x()?;
+            fresh = true;
+            since_refresh = 0;
+            continue;
+        }
         // try [X P W], then [X W], then [X]
         let all: Vec<usize> = (0..ns).collect();
         let xw: Vec<usize> = (0..m).chain(m + np..ns).collect();

@@ -11,6 +11,23 @@ pyo3::create_exception!(
     "An iterative method missed its tolerance. Attributes: `energies` (best estimates), `iterations`, and `residuals` (eigensolvers) or `rates` |dE/dτ| (imaginary-time relaxation)."
 );
 
+pyo3::create_exception!(
+    _core,
+    AccuracyWarning,
+    pyo3::exceptions::PyUserWarning,
+    "Round-off limits the accuracy of some computed levels (see `Spectrum.attainable_accuracy`)."
+);
+
+/// Emit the spectrum's accuracy warning, if any, as a `specwell.AccuracyWarning`.
+pub fn warn_accuracy(py: Python<'_>, s: &crate::eigen::Spectrum) -> PyResult<()> {
+    if let Some(msg) = s.accuracy_warning() {
+        let cat = py.get_type::<AccuracyWarning>();
+        let msg = std::ffi::CString::new(msg).unwrap_or_default();
+        PyErr::warn(py, &cat, &msg, 2)?;
+    }
+    Ok(())
+}
+
 /// Convert a core error into the Python exception the public contract promises.
 pub fn to_py(py: Python<'_>, e: Error) -> PyErr {
     match e {

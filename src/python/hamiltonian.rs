@@ -147,6 +147,7 @@ impl PyHamiltonian {
         }
         let h = self.inner.clone();
         let s = py.detach(move || eigen::solve(&h, &opts)).py(py)?;
+        super::errors::warn_accuracy(py, &s)?;
         Ok(PySpectrum { inner: Arc::new(s) })
     }
 
@@ -396,6 +397,18 @@ impl PySpectrum {
     fn iterations(&self) -> usize {
         self.inner.iterations
     }
+    /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min),
+    /// shape (count,). Above 1e-8 a `specwell.AccuracyWarning` is issued by `solve`.
+    #[getter]
+    fn attainable_accuracy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, &self.inner.attainable)
+    }
+    /// How the result was produced when the automatic choice changed course (e.g. an
+    /// iteration that stalled and was finished densely), else None.
+    #[getter]
+    fn note(&self) -> Option<String> {
+        self.inner.note.clone()
+    }
     #[getter]
     fn units(&self) -> &'static str {
         self.inner.units().name()
@@ -615,5 +628,8 @@ pub fn solve_batch(
     opts.method = method;
     opts.tol = tol;
     let spectra = py.detach(move || eigen::solve_batch(&b, &rows, &m, units, &opts)).py(py)?;
+    if let Some(s) = spectra.iter().find(|s| s.accuracy_warning().is_some()) {
+        super::errors::warn_accuracy(py, s)?;
+    }
     Ok(PyBatch { items: spectra.into_iter().map(Arc::new).collect() })
 }

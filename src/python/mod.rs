@@ -35,6 +35,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_spectrum_from_parts, m)?)?;
     m.add("ConvergenceError", m.py().get_type::<errors::ConvergenceError>())?;
+    m.add("AccuracyWarning", m.py().get_type::<errors::AccuracyWarning>())?;
     m.add("UNITS", crate::error::choice_names(&crate::model::units::Units::TABLE))?;
     m.add("METHODS", crate::error::choice_names(&crate::eigen::Method::TABLE))?;
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
