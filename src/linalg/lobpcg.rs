@@ -672,20 +672,19 @@ pub fn lobpcg(
         let converged: Vec<bool> = (0..m).map(|j| j < count && res[j] <= opts.tol).collect();
         let done = converged[..count].iter().all(|&c| c);
         // Stagnation (no halving of the best residual for STALL_ITERS steps) or divergence
-        // (residuals far above the best, or not finite): restart from the best iterate
-        // with fresh directions once; a second stall ends the iteration.
+        // (residuals far above the best, or not finite), judged on explicit products:
+        // restart from the best iterate with fresh directions, up to MAX_RESTARTS
+        // times; the next stall ends the iteration.
         let diverged = !score.is_finite() || score > DIVERGE_FACTOR * best.score;
         let stalled = iter >= best.iter + STALL_ITERS;
-        if !done && fresh && (diverged || stalled) && iter < opts.max_iter {
-            if stalls < MAX_RESTARTS {
-                stalls += 1;
-                best.restore(&mut w);
-                w.np = 0;
-                w.rebuild_x()?;
-                best.iter = iter;
-                since_refresh = 0;
-                continue;
-            }
+        if !done && fresh && (diverged || stalled) && iter < opts.max_iter && stalls < MAX_RESTARTS {
+            stalls += 1;
+            best.restore(&mut w);
+            w.np = 0;
+            w.rebuild_x()?;
+            best.iter = iter;
+            since_refresh = 0;
+            continue;
         }
         let give_up = stalls >= MAX_RESTARTS && (diverged || stalled);
         if done || iter >= opts.max_iter || give_up {
