@@ -16,7 +16,23 @@ Modules
 * poisson          Schrödinger-Poisson (finite differences, Anderson mixing)
 * current          Tsu-Esaki current density
 
-Accuracy of each reference is measured against closed forms in tests/test_reference.py.
+Accuracy, as measured by tests/test_reference.py (closed form or independent construction):
+* bound_levels: 1e-15 relative vs Bastard (1981) roots, also with non-parabolicity (Nelson,
+  Miller & Kleinman 1987); 8e-13 vs the Airy-zero triangular well in a field (limited by
+  the finite wall of that construction); Airy/plane-wave layer matrices 1e-13 vs DOP853;
+  tunnel-split pairs down to ~1e-8 meV are resolved (20 nm barrier pair: splitting equal to
+  finite differences to 5e-6).
+* transmission: 2e-15 vs the rectangular-barrier formula (also T ~ 1e-150), step 1e-15,
+  1e-12 vs ODE-integrated scattering in a field; R + T = 1 to 1e-13.
+* resonances: Breit-Wigner half-maximum at E_r ± Γ/2 to 2e-3 (the Lorentzian's own
+  accuracy), width ratios vs WKB e^{−2κΔb} to 0.3 %.
+* miniband_energies: 1e-15 vs Kronig-Penney roots and the empty lattice.
+* fd_levels: O(h²) raw (3e-4 relative at h = 0.1 nm), O(h⁴) Richardson (6e-8 at h = 0.1,
+  4e-9 at 0.05); ~10 ms for a three-well stack at 1e-7.
+* schrodinger_poisson: neutrality 1e-12, residual < 1e-9 meV, Richardson O(h⁴) in
+  E_i − E_F (6e-6 meV between h = 0.2 and 0.1 nm).
+* tsu_esaki_integral: 1e-15 vs the dilogarithm (T = 1), 1e-13 vs the exact log-gamma
+  Lorentzian integral; tsu_esaki_current quadrature converged to ~1e-10 relative.
 """
 
 from .closed_forms import (abs_potential_levels, airy_zeros, dos_2d, finite_well_levels,
