@@ -31,6 +31,7 @@ pub mod error;
 pub mod hamiltonian;
 pub mod heterostructure;
 mod linalg;
+pub mod model;
 pub mod observables;
 pub mod propagate;
 pub mod units;
