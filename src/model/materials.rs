@@ -230,6 +230,335 @@ fn find_binary(name: &str) -> Option<&'static Binary> {
     BINARIES.iter().find(|b| b.name == name)
 }
 
+/// Bowing parameters C of a ternary, meV (mass: m_e). Zero means linear (Vegard)
+/// interpolation: VMR 2001 give no bowing for that quantity, or we did not recall one
+/// (the row's comments say which).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Bowing {
+    /// Γ-gap bowing C(x) = `gap.0` + `gap.1`·x (meV); only AlGaAs has `gap.1` ≠ 0.
+    pub gap: (f64, f64),
+    /// Valence-band-offset bowing, meV.
+    pub vbo: f64,
+    /// Γ-mass bowing, m_e.
+    pub mass: f64,
+    /// Kane-energy bowing, meV.
+    pub kane_energy: f64,
+    /// Spin-orbit bowing, meV.
+    pub spin_orbit: f64,
+}
+
+/// A ternary alloy between the binaries `at_x1` (x = 1) and `at_x0` (x = 0).
+/// Every quantity P follows P(x) = x·P(`at_x1`) + (1 − x)·P(`at_x0`) − x(1 − x)·C, with C
+/// from [`Bowing`] (Γ gap, VBO, mass, E_P, Δ_so) and C = 0 for ε_r and the lattice constant
+/// (Vegard). Gaps are bowed after each binary's gap is taken to the temperature, i.e. the
+/// bowing is temperature independent (as in VMR 2001).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Ternary {
+    pub name: &'static str,
+    /// The binary at x = 1.
+    pub at_x1: &'static str,
+    /// The binary at x = 0.
+    pub at_x0: &'static str,
+    /// What x counts, as a formula.
+    pub composition: &'static str,
+    pub bowing: Bowing,
+    pub source: &'static str,
+    /// True when the bowing values were recalled from memory (every row here).
+    pub recalled: bool,
+}
+
+/// The ternaries. All bowing values recalled from memory of VMR 2001 (their alloy sections
+/// and bowing summary table; table number not recalled). VMR 2001 print C in eV.
+pub const TERNARIES: [Ternary; 6] = [
+    Ternary {
+        name: "AlGaAs",
+        at_x1: "AlAs",
+        at_x0: "GaAs",
+        composition: "Al_x Ga_(1-x) As, x = Al fraction",
+        bowing: Bowing {
+            gap: (-127.0, 1310.0), // C = −0.127 + 1.310x eV, x = Al fraction; recalled (anchor value of the brief)
+            vbo: 0.0,              // none in VMR 2001 (recalled): linear
+            mass: 0.0,             // none in VMR 2001 (recalled): linear
+            kane_energy: 0.0,      // none in VMR 2001 (recalled): linear
+            spin_orbit: 0.0,       // none in VMR 2001 (recalled): linear
+        },
+        source: "VMR 2001, AlGaAs section and ternary bowing table (table number not recalled); \
+                 eps_r linear between the binaries, equal to LRS vol. 2's 12.90 - 2.84x; all values recalled from memory",
+        recalled: true,
+    },
+    Ternary {
+        name: "InGaAs",
+        at_x1: "InAs",
+        at_x0: "GaAs",
+        composition: "In_x Ga_(1-x) As, x = In fraction (x = 0.53 is lattice-matched to InP)",
+        bowing: Bowing {
+            gap: (477.0, 0.0),     // 0.477 eV; recalled from memory
+            vbo: -380.0,           // −0.38 eV; recalled from memory
+            mass: 0.0091,          // recalled from memory
+            kane_energy: -1480.0,  // −1.48 eV; recalled from memory
+            spin_orbit: 150.0,     // 0.15 eV; recalled from memory
+        },
+        source: "VMR 2001, GaInAs section and ternary bowing table (table number not recalled); \
+                 eps_r linear (Vegard); all values recalled from memory",
+        recalled: true,
+    },
+    Ternary {
+        name: "InAlAs",
+        at_x1: "InAs",
+        at_x0: "AlAs",
+        composition: "In_x Al_(1-x) As, x = In fraction (x = 0.52 is lattice-matched to InP)",
+        bowing: Bowing {
+            gap: (700.0, 0.0),     // 0.70 eV; recalled from memory
+            vbo: -640.0,           // −0.64 eV; recalled from memory (medium confidence)
+            mass: 0.049,           // recalled from memory (medium confidence)
+            kane_energy: -4810.0,  // −4.81 eV; recalled from memory (medium confidence)
+            spin_orbit: 150.0,     // 0.15 eV; recalled from memory (medium confidence)
+        },
+        source: "VMR 2001, AlInAs section and ternary bowing table (table number not recalled); \
+                 eps_r linear (Vegard); all values recalled from memory",
+        recalled: true,
+    },
+    Ternary {
+        name: "GaAsSb",
+        at_x1: "GaSb",
+        at_x0: "GaAs",
+        composition: "GaAs_(1-x) Sb_x, x = Sb fraction (x = 0.49 is lattice-matched to InP)",
+        bowing: Bowing {
+            gap: (1430.0, 0.0),    // 1.43 eV; recalled from memory
+            vbo: -1060.0,          // −1.06 eV; recalled from memory (medium confidence)
+            mass: 0.0,             // none recalled: linear
+            kane_energy: 0.0,      // none recalled: linear
+            spin_orbit: 600.0,     // 0.6 eV; recalled from memory (medium confidence)
+        },
+        source: "VMR 2001, GaAsSb section and ternary bowing table (table number not recalled); \
+                 eps_r linear (Vegard); all values recalled from memory",
+        recalled: true,
+    },
+    Ternary {
+        name: "InAsSb",
+        at_x1: "InSb",
+        at_x0: "InAs",
+        composition: "InAs_(1-x) Sb_x, x = Sb fraction",
+        bowing: Bowing {
+            gap: (670.0, 0.0),     // 0.67 eV; recalled from memory
+            vbo: 0.0,              // none recalled: linear (low confidence that VMR 2001 give none)
+            mass: 0.035,           // recalled from memory (medium-low confidence)
+            kane_energy: 0.0,      // none recalled: linear
+            spin_orbit: 1200.0,    // 1.2 eV; recalled from memory (medium confidence)
+        },
+        source: "VMR 2001, InAsSb section and ternary bowing table (table number not recalled); \
+                 eps_r linear (Vegard); all values recalled from memory",
+        recalled: true,
+    },
+    Ternary {
+        name: "AlAsSb",
+        at_x1: "AlSb",
+        at_x0: "AlAs",
+        composition: "AlAs_(1-x) Sb_x, x = Sb fraction (x = 0.44 is lattice-matched to InP)",
+        bowing: Bowing {
+            gap: (800.0, 0.0),     // Γ gap 0.8 eV; recalled from memory (medium confidence)
+            vbo: -1710.0,          // −1.71 eV; recalled from memory (low-medium confidence)
+            mass: 0.0,             // none recalled: linear
+            kane_energy: 0.0,      // none recalled: linear
+            spin_orbit: 0.0,       // not recalled reliably: linear (see MATERIALS_NOTES.md)
+        },
+        source: "VMR 2001, AlAsSb section and ternary bowing table (table number not recalled); \
+                 eps_r linear (Vegard); all values recalled from memory",
+        recalled: true,
+    },
+];
+
+/// Highest temperature accepted by [`material`], K. InSb melts near 800 K (recalled), and
+/// the temperature laws are fits to data taken mostly at and below room temperature, so
+/// above this the table would be an extrapolation of an extrapolation.
+pub const MAX_TEMPERATURE_K: f64 = 800.0;
+
+/// P(x) = x·`p1` + (1 − x)·`p0` − x(1 − x)·`c`: the bowing interpolation between the binary
+/// values `p1` (at x = 1) and `p0` (at x = 0). `c = 0` is linear (Vegard) interpolation.
+pub fn bowed(p1: f64, p0: f64, x: f64, c: f64) -> f64 {
+    x * p1 + (1.0 - x) * p0 - x * (1.0 - x) * c
+}
+
+/// The parameters of one material at one composition and temperature.
+/// Energies meV, mass m_e, lattice constant Å (at 300 K whatever `temperature_k`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Material {
+    /// Table name ("GaAs", "AlGaAs", ...).
+    pub name: &'static str,
+    /// Composition for ternaries (see [`Ternary::composition`]), `None` for binaries.
+    pub x: Option<f64>,
+    /// Temperature the gap was evaluated at, K.
+    pub temperature_k: f64,
+    /// Γ-valley band gap E_g(T), meV.
+    pub band_gap: f64,
+    /// Valence-band maximum on the VMR 2001 scale (InSb = 0), meV; temperature independent.
+    pub valence_band: f64,
+    /// Γ conduction-band minimum = `valence_band` + `band_gap`, meV.
+    pub conduction_band: f64,
+    /// Γ electron effective mass (band edge, 0 K value), m_e.
+    pub mass: f64,
+    /// Kane energy E_P, meV.
+    pub kane_energy: f64,
+    /// Spin-orbit splitting Δ_so, meV.
+    pub spin_orbit: f64,
+    /// Static relative permittivity ε_r.
+    pub permittivity: f64,
+    /// Lattice constant at 300 K, Å.
+    pub lattice_constant: f64,
+    /// Where the row's numbers come from.
+    pub source: &'static str,
+}
+
+/// All material names [`material`] accepts: the binaries, then the ternaries.
+pub fn material_names() -> Vec<&'static str> {
+    BINARIES.iter().map(|b| b.name).chain(TERNARIES.iter().map(|t| t.name)).collect()
+}
+
+fn unknown_name(name: &str) -> InputError {
+    InputError::UnknownOption {
+        argument: "name".into(),
+        got: name.into(),
+        choices: material_names().into_iter().map(String::from).collect(),
+    }
+}
+
+/// The source string of the row `name`; unknown names give an error listing the choices.
+pub fn source(name: &str) -> Result<&'static str, InputError> {
+    if let Some(b) = find_binary(name) {
+        return Ok(b.source);
+    }
+    find_ternary(name).map(|t| t.source).ok_or_else(|| unknown_name(name))
+}
+
+/// The parameters of material `name` (case-sensitive, one of [`material_names`]) at
+/// composition `x` and temperature `temperature_k` (K).
+///
+/// * Binaries take `x = None`; ternaries need `x = Some(x)`, 0 ≤ x ≤ 1, with x as in
+///   [`Ternary::composition`] (AlGaAs: Al fraction; InGaAs, InAlAs: In fraction; GaAsSb,
+///   InAsSb, AlAsSb: Sb fraction).
+/// * 0 ≤ `temperature_k` ≤ [`MAX_TEMPERATURE_K`]. The gap of each binary follows its
+///   [`GapLaw`]; a ternary's gap is then bowed. Narrow-gap alloys (InAsSb) can reach a
+///   modelled gap ≤ 0 below that limit; such a temperature is refused with an error naming
+///   the temperature at which the modelled gap closes.
+///
+/// Errors (never panics): unknown `name` (lists all choices); `x` missing for a ternary,
+/// present for a binary, or outside [0, 1]; `temperature_k` outside the range or non-finite.
+pub fn material(name: &str, x: Option<f64>, temperature_k: f64) -> Result<Material, InputError> {
+    enum Row {
+        Binary(&'static Binary),
+        Ternary(&'static Ternary, &'static Binary, &'static Binary, f64),
+    }
+    let row = if let Some(b) = find_binary(name) {
+        if let Some(x) = x {
+            return Err(InputError::range("x", format!("None for the binary {} (it has no composition)", b.name), x));
+        }
+        Row::Binary(b)
+    } else if let Some(t) = find_ternary(name) {
+        let x = match x {
+            Some(x) if (0.0..=1.0).contains(&x) => x,
+            Some(x) => return Err(InputError::range("x", format!("in [0, 1] for {} ({})", t.name, t.composition), x)),
+            None => {
+                return Err(InputError::range(
+                    "x",
+                    format!("given (Some(x), x in [0, 1]) for the ternary {} ({})", t.name, t.composition),
+                    "None",
+                ))
+            }
+        };
+        let (b1, b0) = ternary_ends(t)?;
+        Row::Ternary(t, b1, b0, x)
+    } else {
+        return Err(unknown_name(name));
+    };
+    if !(0.0..=MAX_TEMPERATURE_K).contains(&temperature_k) {
+        return Err(InputError::range("temperature_k", format!("in [0, {MAX_TEMPERATURE_K}] K"), temperature_k));
+    }
+    let m = match row {
+        Row::Binary(b) => Material {
+            name: b.name,
+            x: None,
+            temperature_k,
+            band_gap: b.gap(temperature_k),
+            valence_band: b.vbo,
+            conduction_band: b.vbo + b.gap(temperature_k),
+            mass: b.mass,
+            kane_energy: b.kane_energy,
+            spin_orbit: b.spin_orbit,
+            permittivity: b.permittivity,
+            lattice_constant: b.lattice_constant,
+            source: b.source,
+        },
+        Row::Ternary(t, b1, b0, x) => {
+            let c = &t.bowing;
+            let band_gap = ternary_gap(t, b1, b0, x, temperature_k);
+            if band_gap <= 0.0 {
+                let closes = gap_closing_temperature(t, b1, b0, x, temperature_k);
+                return Err(InputError::range(
+                    "temperature_k",
+                    format!(
+                        "below {closes:.1} K for {} at x = {x}: its modelled Gamma gap closes there",
+                        t.name
+                    ),
+                    temperature_k,
+                ));
+            }
+            let valence_band = bowed(b1.vbo, b0.vbo, x, c.vbo);
+            Material {
+                name: t.name,
+                x: Some(x),
+                temperature_k,
+                band_gap,
+                valence_band,
+                conduction_band: valence_band + band_gap,
+                mass: bowed(b1.mass, b0.mass, x, c.mass),
+                kane_energy: bowed(b1.kane_energy, b0.kane_energy, x, c.kane_energy),
+                spin_orbit: bowed(b1.spin_orbit, b0.spin_orbit, x, c.spin_orbit),
+                permittivity: bowed(b1.permittivity, b0.permittivity, x, 0.0),
+                lattice_constant: bowed(b1.lattice_constant, b0.lattice_constant, x, 0.0),
+                source: t.source,
+            }
+        }
+    };
+    Ok(m)
+}
+
+fn find_ternary(name: &str) -> Option<&'static Ternary> {
+    TERNARIES.iter().find(|t| t.name == name)
+}
+
+/// The end binaries of a ternary row (x = 1, x = 0). A missing one is a table defect; it is
+/// reported rather than panicking.
+fn ternary_ends(t: &Ternary) -> Result<(&'static Binary, &'static Binary), InputError> {
+    let get = |n: &str| {
+        find_binary(n).ok_or_else(|| {
+            InputError::range("name", format!("a ternary whose end binaries are in the table ({} names {n})", t.name), t.name)
+        })
+    };
+    Ok((get(t.at_x1)?, get(t.at_x0)?))
+}
+
+/// Γ gap of a ternary, meV: each binary's gap at `temperature_k`, bowed with C(x).
+fn ternary_gap(t: &Ternary, b1: &Binary, b0: &Binary, x: f64, temperature_k: f64) -> f64 {
+    let (c0, c1) = t.bowing.gap;
+    bowed(b1.gap(temperature_k), b0.gap(temperature_k), x, c0 + c1 * x)
+}
+
+/// The temperature in (0, `above`] where the modelled gap of a ternary reaches zero, by
+/// bisection (the gap falls monotonically with T: both binary laws fall and the bowing
+/// term does not depend on T). Called only when gap(0) > 0 ≥ gap(`above`).
+fn gap_closing_temperature(t: &Ternary, b1: &Binary, b0: &Binary, x: f64, above: f64) -> f64 {
+    let (mut lo, mut hi) = (0.0, above);
+    for _ in 0..60 {
+        let mid = 0.5 * (lo + hi);
+        if ternary_gap(t, b1, b0, x, mid) > 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    lo
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -284,17 +613,199 @@ mod tests {
                 assert!(i < 20 || g < last, "{}: gap does not fall at {i} K", b.name);
                 last = g;
             }
+            assert!(b.gap(MAX_TEMPERATURE_K) > 0.0, "{}: the accepted range must keep every binary gap open", b.name);
             let drop_1k = b.gap_0k - b.gap(1.0);
             assert!((0.0..0.01).contains(&drop_1k), "{}: {drop_1k} meV in the first kelvin", b.name);
         }
     }
 
-    /// Every row says where it comes from and that it was recalled.
+    /// Every row says where it comes from and that it was recalled; `source()` agrees.
     #[test]
     fn every_row_marked_recalled_with_source() {
         for b in &BINARIES {
             assert!(b.recalled, "{}", b.name);
             assert!(b.source.contains("VMR 2001") && b.source.contains("recalled"), "{}", b.name);
+            assert_eq!(source(b.name).unwrap(), b.source);
+        }
+        for t in &TERNARIES {
+            assert!(t.recalled, "{}", t.name);
+            assert!(t.source.contains("VMR 2001") && t.source.contains("recalled"), "{}", t.name);
+            assert_eq!(source(t.name).unwrap(), t.source);
+        }
+        assert_eq!(argument_of(&source("GaN").unwrap_err()), "name");
+    }
+
+    fn argument_of(e: &InputError) -> &str {
+        match e {
+            InputError::OutOfRange { argument, .. } | InputError::UnknownOption { argument, .. } => argument,
+            other => panic!("unexpected error kind {other:?}"),
+        }
+    }
+
+    /// The brief's anchor (VMR 2001, AlGaAs; recalled): C(E_g^Γ) = −127 + 1310x meV, x = Al
+    /// fraction. By hand at x = 0.3, 0 K: C = 266, E_g = 0.3·3099 + 0.7·1519 − 0.21·266
+    /// = 929.7 + 1063.3 − 55.86 = 1937.14 meV.
+    #[test]
+    fn algaas_gap_bowing_anchor() {
+        let t = find_ternary("AlGaAs").unwrap();
+        assert_eq!(t.bowing.gap, (-127.0, 1310.0));
+        assert_eq!((t.at_x1, t.at_x0), ("AlAs", "GaAs"), "x counts Al");
+        let m = material("AlGaAs", Some(0.3), 0.0).unwrap();
+        assert!((m.band_gap - 1937.14).abs() < 1e-9, "{}", m.band_gap);
+    }
+
+    /// GaAs / Al0.3Ga0.7As conduction-band offset, interpolated by hand from the VMR 2001
+    /// binary values written out here (recalled from memory), not read from the table.
+    /// 0 K: VBO(alloy) = 0.3(−1330) + 0.7(−800) = −959; E_c(alloy) = −959 + 1937.14 = 978.14;
+    /// E_c(GaAs) = −800 + 1519 = 719; ΔE_c = 259.14 meV.
+    /// The split ΔE_c/ΔE_g ≈ 0.62 sits in the commonly quoted 0.60–0.67 range for GaAs/AlGaAs
+    /// (recalled from memory).
+    #[test]
+    fn gaas_algaas_conduction_band_offset() {
+        let offset = |t: f64| {
+            material("AlGaAs", Some(0.3), t).unwrap().conduction_band - material("GaAs", None, t).unwrap().conduction_band
+        };
+        assert!((offset(0.0) - 259.14).abs() < 1e-9, "{}", offset(0.0));
+        // 300 K by hand: each binary's Varshni gap first, then the bowing.
+        let t: f64 = 300.0;
+        let gap_gaas = 1519.0 - 0.5405 * t * t / (t + 204.0);
+        let gap_alas = 3099.0 - 0.885 * t * t / (t + 530.0);
+        let x = 0.3;
+        let gap_alloy = x * gap_alas + (1.0 - x) * gap_gaas - x * (1.0 - x) * (-127.0 + 1310.0 * x);
+        let vbo_alloy = x * -1330.0 + (1.0 - x) * -800.0;
+        let by_hand = (vbo_alloy + gap_alloy) - (-800.0 + gap_gaas);
+        assert!((offset(t) - by_hand).abs() < 1e-9, "{} vs {by_hand}", offset(t));
+        assert!((by_hand - 259.306).abs() < 1e-3, "{by_hand}");
+        let split = offset(t) / (gap_alloy - gap_gaas);
+        assert!((0.60..0.67).contains(&split), "{split}");
+    }
+
+    /// In0.53Ga0.47As, lattice-matched to InP: room-temperature gap 0.72–0.76 eV and Γ mass
+    /// 0.041–0.045 m_e (published ranges, recalled from memory: e.g. Pearsall (ed.), GaInAsP
+    /// Alloy Semiconductors (1982) gives ~0.75 eV and ~0.041 m_e).
+    #[test]
+    fn ingaas_lattice_matched_to_inp() {
+        let m = material("InGaAs", Some(0.53), 300.0).unwrap();
+        assert!((720.0..=760.0).contains(&m.band_gap), "{}", m.band_gap);
+        assert!((0.041..=0.045).contains(&m.mass), "{}", m.mass);
+    }
+
+    /// The lattice-matching compositions stated in [`Ternary::composition`] do match InP
+    /// (Vegard's law on the 300 K lattice constants): mismatch below 0.1 %.
+    #[test]
+    fn stated_lattice_matches_hold() {
+        let a_inp = material("InP", None, 300.0).unwrap().lattice_constant;
+        for (name, x) in [("InGaAs", 0.53), ("InAlAs", 0.52), ("GaAsSb", 0.49), ("AlAsSb", 0.44)] {
+            assert!(find_ternary(name).unwrap().composition.contains(&format!("x = {x} is lattice-matched to InP")));
+            let a = material(name, Some(x), 300.0).unwrap().lattice_constant;
+            assert!(((a - a_inp) / a_inp).abs() < 1e-3, "{name}: {a} vs {a_inp}");
+        }
+    }
+
+    /// The bowing form P = x P1 + (1 − x) P0 − x(1 − x) C returns the end binaries at x = 1
+    /// and x = 0 for every quantity (any C, including AlGaAs's x-dependent one).
+    #[test]
+    fn ternaries_reduce_to_their_end_binaries() {
+        for t in &TERNARIES {
+            for temperature in [0.0, 77.0, 300.0, MAX_TEMPERATURE_K] {
+                for (x, end) in [(1.0, t.at_x1), (0.0, t.at_x0)] {
+                    let a = material(t.name, Some(x), temperature).unwrap();
+                    let b = material(end, None, temperature).unwrap();
+                    let pairs = [
+                        (a.band_gap, b.band_gap),
+                        (a.valence_band, b.valence_band),
+                        (a.conduction_band, b.conduction_band),
+                        (a.mass, b.mass),
+                        (a.kane_energy, b.kane_energy),
+                        (a.spin_orbit, b.spin_orbit),
+                        (a.permittivity, b.permittivity),
+                        (a.lattice_constant, b.lattice_constant),
+                    ];
+                    for (i, (p, q)) in pairs.iter().enumerate() {
+                        assert!((p - q).abs() <= 1e-12 * q.abs().max(1.0), "{} x={x} T={temperature} field {i}: {p} vs {q}", t.name);
+                    }
+                }
+            }
+        }
+    }
+
+    /// Alloy gaps fall monotonically with temperature too (binary laws fall, bowing is
+    /// T independent) until the model refuses the temperature.
+    #[test]
+    fn ternary_gaps_fall_with_temperature() {
+        for t in &TERNARIES {
+            for x in [0.25, 0.5, 0.75] {
+                let mut last = f64::INFINITY;
+                for i in 0..=800 {
+                    match material(t.name, Some(x), i as f64) {
+                        Ok(m) => {
+                            assert!(m.band_gap <= last && (i < 20 || m.band_gap < last), "{} x={x} at {i} K", t.name);
+                            last = m.band_gap;
+                        }
+                        Err(e) => {
+                            assert_eq!(t.name, "InAsSb", "only the narrow-gap alloy may close: {e}");
+                            assert_eq!(argument_of(&e), "temperature_k");
+                            break;
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    /// InAs0.4Sb0.6: by the table's recalled numbers the modelled gap closes at 599.598 K
+    /// (root of 0.6 E_InSb(T) + 0.4 E_InAs(T) − 0.24·670 found independently with
+    /// scipy.optimize.brentq). Below it the material is returned, above it refused.
+    #[test]
+    fn narrow_gap_alloy_refuses_closed_gap() {
+        let ok = material("InAsSb", Some(0.6), 590.0).unwrap();
+        assert!(ok.band_gap > 0.0 && ok.band_gap < 5.0, "{}", ok.band_gap);
+        let e = material("InAsSb", Some(0.6), 700.0).unwrap_err();
+        assert_eq!(argument_of(&e), "temperature_k");
+        assert!(e.to_string().contains("599.6 K"), "{e}");
+    }
+
+    /// Bad inputs give errors naming the argument and the accepted range.
+    #[test]
+    fn bad_inputs_name_the_argument() {
+        let e = material("GaN", None, 300.0).unwrap_err();
+        assert_eq!(argument_of(&e), "name");
+        match &e {
+            InputError::UnknownOption { choices, .. } => {
+                assert_eq!(choices.len(), 15);
+                assert_eq!(choices, &material_names().into_iter().map(String::from).collect::<Vec<_>>());
+            }
+            other => panic!("{other:?}"),
+        }
+        assert!(e.to_string().contains("\"AlGaAs\"") && e.to_string().contains("\"InSb\""), "{e}");
+        assert_eq!(argument_of(&material("gaas", None, 300.0).unwrap_err()), "name", "names are case-sensitive");
+
+        for (name, x) in [("AlGaAs", None), ("AlGaAs", Some(1.5)), ("InGaAs", Some(-0.1)), ("GaAsSb", Some(f64::NAN)), ("GaAs", Some(0.3))] {
+            let e = material(name, x, 300.0).unwrap_err();
+            assert_eq!(argument_of(&e), "x", "{name} {x:?}: {e}");
+        }
+        assert!(material("AlGaAs", None, 300.0).unwrap_err().to_string().contains("Al fraction"));
+        assert!(material("AlGaAs", Some(2.0), 300.0).unwrap_err().to_string().contains("[0, 1]"));
+
+        for t in [-1.0, MAX_TEMPERATURE_K + 1.0, f64::NAN, f64::INFINITY] {
+            let e = material("GaAs", None, t).unwrap_err();
+            assert_eq!(argument_of(&e), "temperature_k", "{t}: {e}");
+            assert!(e.to_string().contains("[0, 800] K"), "{e}");
+        }
+        // The accepted edges.
+        assert!(material("InSb", None, 0.0).is_ok() && material("InSb", None, MAX_TEMPERATURE_K).is_ok());
+        assert!(material("InAlAs", Some(0.0), 300.0).is_ok() && material("InAlAs", Some(1.0), 300.0).is_ok());
+    }
+
+    #[test]
+    fn names_are_unique_and_complete() {
+        let names = material_names();
+        assert_eq!(names.len(), BINARIES.len() + TERNARIES.len());
+        for (i, n) in names.iter().enumerate() {
+            assert!(!names[i + 1..].contains(n), "{n} twice");
+        }
+        for t in &TERNARIES {
+            assert!(ternary_ends(t).is_ok(), "{}", t.name);
         }
     }
 }
