@@ -70,6 +70,10 @@ pub struct Binary {
     pub kane_energy: f64,
     /// Spin-orbit splitting Δ_so, meV.
     pub spin_orbit: f64,
+    /// Kane's remote-band parameter F (dimensionless), which VMR 2001 list beside E_P so that
+    /// m_e/m* = (1 + 2F) + E_P (E_g + 2Δ_so/3) / (E_g (E_g + Δ_so)) at 0 K. Kept as a
+    /// consistency check of the recalled m*, E_P, Δ_so and E_g (see the tests).
+    pub kane_f: f64,
     /// Static relative permittivity ε_r (low-frequency), dimensionless.
     pub permittivity: f64,
     /// Lattice constant at 300 K, Å.
@@ -96,6 +100,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.067,                  // recalled from memory (anchor value of the brief)
         kane_energy: 28800.0,         // 28.8 eV; recalled from memory
         spin_orbit: 341.0,            // 0.341 eV; recalled from memory
+        kane_f: -1.94,                // recalled from memory
         permittivity: 12.9,           // LRS vol. 1; recalled from memory
         lattice_constant: 5.65325,    // recalled from memory
         source: "VMR 2001, Table I (GaAs; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -110,6 +115,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.15,                   // recalled from memory
         kane_energy: 21100.0,         // 21.1 eV; recalled from memory
         spin_orbit: 280.0,            // 0.28 eV; recalled from memory
+        kane_f: -0.48,                // recalled from memory
         permittivity: 10.06,          // LRS vol. 2 (AlGaAs: 12.90 − 2.84x at x = 1); recalled from memory
         lattice_constant: 5.6611,     // recalled from memory
         source: "VMR 2001, Table II (AlAs; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -124,6 +130,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.026,                  // recalled from memory
         kane_energy: 21500.0,         // 21.5 eV; recalled from memory
         spin_orbit: 390.0,            // 0.39 eV; recalled from memory
+        kane_f: -2.90,                // recalled from memory
         permittivity: 15.15,          // LRS vol. 1; recalled from memory
         lattice_constant: 6.0583,     // recalled from memory
         source: "VMR 2001, Table III (InAs; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -139,6 +146,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.13,                   // Γ mass; recalled from memory (low-medium confidence)
         kane_energy: 31400.0,         // 31.4 eV; recalled from memory
         spin_orbit: 80.0,             // 0.08 eV; recalled from memory
+        kane_f: -2.04,                // recalled from memory
         permittivity: 11.1,           // LRS vol. 1; recalled from memory
         lattice_constant: 5.4505,     // recalled from memory
         source: "VMR 2001, Table IV (GaP; table number recalled; Gamma gap with the coth temperature law); \
@@ -154,6 +162,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.22,                   // Γ mass; recalled from memory (low-medium confidence)
         kane_energy: 17700.0,         // 17.7 eV; recalled from memory
         spin_orbit: 70.0,             // 0.07 eV; recalled from memory
+        kane_f: -0.65,                // recalled from memory
         permittivity: 9.8,            // Madelung 2004; recalled from memory (low-medium confidence)
         lattice_constant: 5.4672,     // recalled from memory
         source: "VMR 2001, Table V (AlP; table number recalled); eps_r: Madelung, Semiconductors: Data Handbook, \
@@ -168,6 +177,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.0795,                 // recalled from memory
         kane_energy: 20700.0,         // 20.7 eV; recalled from memory
         spin_orbit: 108.0,            // 0.108 eV; recalled from memory
+        kane_f: -1.31,                // recalled from memory
         permittivity: 12.5,           // LRS vol. 1; recalled from memory
         lattice_constant: 5.8697,     // recalled from memory
         source: "VMR 2001, Table VI (InP; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -182,6 +192,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.039,                  // recalled from memory
         kane_energy: 27000.0,         // 27.0 eV; recalled from memory
         spin_orbit: 760.0,            // 0.76 eV; recalled from memory
+        kane_f: -1.63,                // recalled from memory
         permittivity: 15.7,           // LRS vol. 1; recalled from memory
         lattice_constant: 6.0959,     // recalled from memory
         source: "VMR 2001, Table VII (GaSb; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -196,6 +207,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.14,                   // recalled from memory
         kane_energy: 18700.0,         // 18.7 eV; recalled from memory
         spin_orbit: 676.0,            // 0.676 eV; recalled from memory
+        kane_f: -0.56,                // recalled from memory
         permittivity: 12.04,          // Madelung 2004; recalled from memory (medium confidence)
         lattice_constant: 6.1355,     // recalled from memory
         source: "VMR 2001, Table VIII (AlSb; table number recalled); eps_r: Madelung, Semiconductors: Data Handbook, \
@@ -210,6 +222,7 @@ pub const BINARIES: [Binary; 9] = [
         mass: 0.0135,                 // recalled from memory
         kane_energy: 23300.0,         // 23.3 eV; recalled from memory
         spin_orbit: 810.0,            // 0.81 eV; recalled from memory
+        kane_f: -0.23,                // recalled from memory
         permittivity: 16.8,           // LRS vol. 1; recalled from memory
         lattice_constant: 6.4794,     // recalled from memory
         source: "VMR 2001, Table IX (InSb; table number recalled); eps_r: Levinshtein, Rumyantsev & Shur, \
@@ -407,6 +420,75 @@ pub struct Material {
     pub lattice_constant: f64,
     /// Where the row's numbers come from.
     pub source: &'static str,
+}
+
+/// Model of the Γ conduction-band nonparabolicity α in E (1 + α E) = ħ²k² / (2 m*),
+/// E measured from the band edge. See [`nonparabolicity_two_band`] and
+/// [`nonparabolicity_three_band`] for the formulas.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Nonparabolicity {
+    /// Kane two-band model (conduction and one valence band).
+    TwoBand,
+    /// Kane three-band model: conduction, light-hole/heavy-hole and split-off bands.
+    /// The default: it uses the table's Δ_so, which is comparable to or larger than the
+    /// gap in InAs, GaSb, InSb and their alloys, where the two-band form is up to 11 % high.
+    #[default]
+    ThreeBand,
+}
+
+impl Nonparabolicity {
+    pub const TABLE: [(&'static str, Nonparabolicity); 2] =
+        [("two_band", Nonparabolicity::TwoBand), ("three_band", Nonparabolicity::ThreeBand)];
+
+    /// Parse an option string (`"two_band"`, `"three_band"`).
+    pub fn parse(s: &str) -> Result<Self, InputError> {
+        crate::error::parse_choice("nonparabolicity", s, &Self::TABLE)
+    }
+
+    /// The option string of this model.
+    pub fn name(self) -> &'static str {
+        crate::error::choice_name(&Self::TABLE, self)
+    }
+}
+
+/// Two-band Kane nonparabolicity, 1/eV: α₂ = (1 − m*/m_e)² / E_g.
+///
+/// `band_gap` in meV (> 0), `mass` = m*/m_e. This is the Δ_so → 0 (and Δ_so → ∞) limit of
+/// [`nonparabolicity_three_band`]; for m* ≪ m_e it is the familiar α ≈ 1/E_g. The factor
+/// (1 − m*/m_e)² comes from the free-electron term ħ²k²/2m_e of Kane's Hamiltonian, as in
+/// Ekenberg, Phys. Rev. B 40, 7714 (1989) (attribution recalled from memory).
+pub fn nonparabolicity_two_band(band_gap: f64, mass: f64) -> f64 {
+    let gap_ev = band_gap * 1e-3;
+    (1.0 - mass).powi(2) / gap_ev
+}
+
+/// Three-band Kane nonparabolicity with the spin-orbit splitting, 1/eV:
+///
+/// α₃ = (1 − m*/m_e)² / E_g · (3 + 4y + 2y²) / ((1 + y)(3 + 2y)),   y = Δ_so / E_g,
+///
+/// as given by Nelson, Miller & Kleinman, Phys. Rev. B 35, 7770 (1987) and used by
+/// Ekenberg (1989) (attribution recalled from memory). Derivation (Kane 1957, three bands,
+/// no remote bands): the conduction band solves E'(E' + E_g)(E' + E_g + Δ) =
+/// k²P² (E' + E_g + 2Δ/3) with E' = E − ħ²k²/2m_e; expanding to first order in E with
+/// m_e/m* = 1 + (E_P/3)(2/E_g + 1/(E_g + Δ)) gives the formula above. The bracket equals
+/// 1 − y/(2y² + 5y + 3): it is 1 at y = 0 and y → ∞ and smallest, 1 − 1/(5 + 2√6) ≈ 0.899,
+/// at y = √(3/2).
+/// `band_gap` and `spin_orbit` in meV (gap > 0, Δ ≥ 0), `mass` = m*/m_e.
+pub fn nonparabolicity_three_band(band_gap: f64, spin_orbit: f64, mass: f64) -> f64 {
+    let y = spin_orbit / band_gap;
+    nonparabolicity_two_band(band_gap, mass) * (3.0 + 4.0 * y + 2.0 * y * y) / ((1.0 + y) * (3.0 + 2.0 * y))
+}
+
+impl Material {
+    /// Conduction-band nonparabolicity α (1/eV) of this material at its temperature, by the
+    /// chosen model (use `Nonparabolicity::default()`, the three-band form, unless you have
+    /// a reason not to). The gap is E_g(T) of this material, the mass its band-edge m*.
+    pub fn nonparabolicity(&self, model: Nonparabolicity) -> f64 {
+        match model {
+            Nonparabolicity::TwoBand => nonparabolicity_two_band(self.band_gap, self.mass),
+            Nonparabolicity::ThreeBand => nonparabolicity_three_band(self.band_gap, self.spin_orbit, self.mass),
+        }
+    }
 }
 
 /// All material names [`material`] accepts: the binaries, then the ternaries.
@@ -795,6 +877,93 @@ mod tests {
         // The accepted edges.
         assert!(material("InSb", None, 0.0).is_ok() && material("InSb", None, MAX_TEMPERATURE_K).is_ok());
         assert!(material("InAlAs", Some(0.0), 300.0).is_ok() && material("InAlAs", Some(1.0), 300.0).is_ok());
+    }
+
+    /// VMR 2001 choose F so that m_e/m* = (1 + 2F) + E_P (E_g + 2Δ/3) / (E_g (E_g + Δ)) at 0 K
+    /// (their Kane-model electron-mass relation; equation number not recalled). Five
+    /// independently recalled numbers per row satisfying it to the printed digits is
+    /// evidence that none of them was misremembered.
+    #[test]
+    fn recalled_mass_kane_energy_and_f_are_consistent() {
+        for b in &BINARIES {
+            let (eg, d) = (b.gap_0k, b.spin_orbit);
+            let inverse = 1.0 + 2.0 * b.kane_f + b.kane_energy * (eg + 2.0 * d / 3.0) / (eg * (eg + d));
+            let predicted = 1.0 / inverse;
+            assert!(((predicted - b.mass) / b.mass).abs() < 5e-3, "{}: m* {} vs {predicted}", b.name, b.mass);
+        }
+    }
+
+    /// Conduction-band energy E(k) of Kane's (1957) three-band model without remote bands,
+    /// solved numerically: E'(E' + E_g)(E' + E_g + Δ) = γ E_P (E' + E_g + 2Δ/3) with
+    /// γ = ħ²k²/2m_e and E = E' + γ (meV). The root in [0, γ(m_e/m* − 1)] by bisection.
+    fn kane_three_band_energy(gap: f64, delta: f64, kane_energy: f64, gamma: f64) -> f64 {
+        let f = |e: f64| e * (e + gap) * (e + gap + delta) - gamma * kane_energy * (e + gap + 2.0 * delta / 3.0);
+        let (mut lo, mut hi) = (0.0, gamma * kane_energy * (2.0 / gap + 1.0 / (gap + delta)) / 3.0);
+        assert!(f(lo) < 0.0 && f(hi) >= 0.0);
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if f(mid) < 0.0 {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        0.5 * (lo + hi) + gamma
+    }
+
+    /// Independent construction: α from the numerically solved Kane dispersion,
+    /// α(E) = (γ m_e/m* − E)/E², extrapolated linearly to E → 0 from two small energies.
+    /// E_P is set from m* by m_e/m* = 1 + (E_P/3)(2/E_g + 1/(E_g + Δ)) (no remote bands),
+    /// the assumption under which the closed forms hold. Δ = 0 gives the two-band model.
+    fn alpha_from_dispersion(gap: f64, delta: f64, mass: f64) -> f64 {
+        let kane_energy = 3.0 * (1.0 / mass - 1.0) / (2.0 / gap + 1.0 / (gap + delta));
+        let at = |e_target: f64| {
+            let gamma = e_target * mass; // E ≈ γ m_e/m* for small k
+            let e = kane_three_band_energy(gap, delta, kane_energy, gamma);
+            (e, (gamma / mass - e) / (e * e))
+        };
+        let ((e1, a1), (e2, a2)) = (at(0.5), at(1.0));
+        (a1 * e2 - a2 * e1) / (e2 - e1) * 1e3 // 1/meV → 1/eV
+    }
+
+    #[test]
+    fn nonparabolicity_matches_kane_dispersion() {
+        for b in &BINARIES {
+            let m = material(b.name, None, 300.0).unwrap();
+            let three = m.nonparabolicity(Nonparabolicity::ThreeBand);
+            let reference = alpha_from_dispersion(m.band_gap, m.spin_orbit, m.mass);
+            assert!(((three - reference) / reference).abs() < 1e-4, "{}: {three} vs {reference}", b.name);
+            let two = m.nonparabolicity(Nonparabolicity::TwoBand);
+            let reference2 = alpha_from_dispersion(m.band_gap, 0.0, m.mass);
+            assert!(((two - reference2) / reference2).abs() < 1e-4, "{}: {two} vs {reference2}", b.name);
+        }
+    }
+
+    /// By hand, GaAs at 0 K: α₂ = (1 − 0.067)²/1.519 = 0.870489/1.519 = 0.573067 /eV;
+    /// y = 341/1519 = 0.224490, bracket = (3 + 0.897959 + 0.100791)/(1.224490 · 3.448980)
+    /// = 3.998750/4.223240 = 0.946844, α₃ = 0.542605 /eV. The three-band form lies within
+    /// [1 − 1/(5 + 2√6), 1]·α₂ (the bracket is 1 − y/(2y² + 5y + 3), extremal at y = √(3/2))
+    /// and tends to α₂ for Δ → 0 and Δ → ∞.
+    #[test]
+    fn nonparabolicity_values_and_limits() {
+        let m = material("GaAs", None, 0.0).unwrap();
+        assert!((m.nonparabolicity(Nonparabolicity::TwoBand) - 0.573067).abs() < 2e-6);
+        assert!((m.nonparabolicity(Nonparabolicity::ThreeBand) - 0.542605).abs() < 2e-6);
+        assert_eq!(m.nonparabolicity(Nonparabolicity::default()), m.nonparabolicity(Nonparabolicity::ThreeBand));
+        let two = nonparabolicity_two_band(1000.0, 0.05);
+        assert!((nonparabolicity_three_band(1000.0, 0.0, 0.05) - two).abs() < 1e-15);
+        assert!((nonparabolicity_three_band(1000.0, 1e12, 0.05) - two).abs() < 1e-6 * two);
+        let worst = nonparabolicity_three_band(1000.0, 1000.0 * 1.5f64.sqrt(), 0.05) / two;
+        assert!((worst - (1.0 - 1.0 / (5.0 + 2.0 * 6f64.sqrt()))).abs() < 1e-12, "{worst}");
+        for name in material_names() {
+            let x = find_ternary(name).map(|_| 0.5);
+            let m = material(name, x, 300.0).unwrap();
+            let ratio = m.nonparabolicity(Nonparabolicity::ThreeBand) / m.nonparabolicity(Nonparabolicity::TwoBand);
+            assert!((1.0 - 1.0 / (5.0 + 2.0 * 6f64.sqrt()) - 1e-12..=1.0).contains(&ratio), "{name}: {ratio}");
+        }
+        assert_eq!(Nonparabolicity::parse("two_band").unwrap(), Nonparabolicity::TwoBand);
+        assert_eq!(Nonparabolicity::ThreeBand.name(), "three_band");
+        assert_eq!(argument_of(&Nonparabolicity::parse("kane").unwrap_err()), "nonparabolicity");
     }
 
     #[test]
