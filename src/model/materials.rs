@@ -1,29 +1,91 @@
-//! III–V semiconductor parameters: binaries and the temperature law of their Γ gap.
+//! III–V semiconductor parameters: band gaps, band offsets, masses, Kane energies,
+//! spin-orbit splittings and permittivities of nine binaries and six ternaries, with the
+//! temperature dependence of the Γ gap and the conduction-band nonparabolicity.
 //!
 //! **Verify every parameter for your own work.** Every number in this file was recalled
-//! from memory of the published compilations named below, not copied from them; each row
-//! carries `recalled: true` and a source string, and `MATERIALS_NOTES.md` at the crate root
-//! says how confident we are in each value. Treat the table as a convenient starting point,
-//! not as a reference.
+//! from memory of the published compilations named below, not copied from them while
+//! writing it; each row carries `recalled: true` and a source string, and
+//! `MATERIALS_NOTES.md` at the crate root says how confident we are in each value. Treat
+//! the table as a convenient starting point, not as a reference.
+//!
+//! # Use
+//! ```
+//! use specwell::model::materials::{material, Nonparabolicity};
+//! let well = material("GaAs", None, 300.0)?;
+//! let barrier = material("AlGaAs", Some(0.3), 300.0)?; // x = Al fraction
+//! let depth = barrier.conduction_band - well.conduction_band; // meV, ≈ 259
+//! let alpha = well.nonparabolicity(Nonparabolicity::default()); // 1/eV, three-band form
+//! assert!(depth > 250.0 && depth < 270.0 && alpha > 0.5 && alpha < 0.7);
+//! # Ok::<(), specwell::InputError>(())
+//! ```
+//! [`material`] takes a name from [`material_names`], the composition x (`None` for a
+//! binary, `Some(x)` with 0 ≤ x ≤ 1 for a ternary) and the temperature in K
+//! (0 ≤ T ≤ [`MAX_TEMPERATURE_K`] = 800 K) and returns a [`Material`]. [`source`] gives
+//! a row's source string; [`BINARIES`] and [`TERNARIES`] are the raw table.
 //!
 //! # Sources
-//! * Band parameters (gap, Varshni coefficients, valence-band offset, Γ mass, Kane energy,
-//!   spin-orbit splitting): I. Vurgaftman, J. R. Meyer and L. R. Ram-Mohan, "Band
-//!   parameters for III–V compound semiconductors and their alloys", J. Appl. Phys. **89**,
-//!   5815 (2001), abbreviated VMR 2001. Its binary tables follow its section order
-//!   (GaAs, AlAs, InAs, GaP, AlP, InP, GaSb, AlSb, InSb → Tables I–IX); that numbering is
-//!   recalled with low confidence.
+//! * Band parameters (Γ gap at 0 K, its temperature law, valence-band offset, Γ mass, Kane
+//!   energy E_P, spin-orbit splitting Δ_so, Kane's F, lattice constant, ternary bowing):
+//!   I. Vurgaftman, J. R. Meyer and L. R. Ram-Mohan, "Band parameters for III–V compound
+//!   semiconductors and their alloys", J. Appl. Phys. **89**, 5815 (2001), abbreviated
+//!   VMR 2001. We cite its binary tables as Tables I–IX in its section order (GaAs, AlAs,
+//!   InAs, GaP, AlP, InP, GaSb, AlSb, InSb); that numbering is recalled with low confidence.
+//!   The ternary bowing comes from its alloy sections and bowing summary table (number not
+//!   recalled).
 //! * Static relative permittivity ε_r: M. Levinshtein, S. Rumyantsev and M. Shur (eds.),
 //!   *Handbook Series on Semiconductor Parameters*, vol. 1 (World Scientific, 1996) and
-//!   vol. 2 (1999) where they cover the compound; O. Madelung, *Semiconductors: Data
-//!   Handbook*, 3rd ed. (Springer, 2004) for AlSb and AlP.
+//!   vol. 2 (1999); O. Madelung, *Semiconductors: Data Handbook*, 3rd ed. (Springer, 2004)
+//!   for AlSb and AlP. Ternaries: linear between the binaries (for AlGaAs this is the
+//!   handbook's own 12.90 − 2.84x).
 //!
 //! # Units and conventions
 //! Energies in meV, temperatures in K, masses in units of the free-electron mass m_e,
-//! lattice constants in Å. The valence-band offset (VBO) is the valence-band maximum on the
-//! common energy scale of VMR 2001, whose zero is the valence-band maximum of InSb; the
-//! conduction-band edge is VBO + E_g(T). VMR 2001 take the VBO, the masses, E_P and Δ_so as
-//! temperature independent; only the gap moves with temperature.
+//! lattice constants in Å (at 300 K whatever the requested temperature), ε_r and F
+//! dimensionless, nonparabolicity in 1/eV. The valence-band offset (VBO) is the
+//! valence-band maximum on the common energy scale of VMR 2001, whose zero is the
+//! valence-band maximum of InSb; the Γ conduction-band edge is VBO + E_g(T). As in VMR 2001
+//! the VBO, the masses, E_P and Δ_so are temperature independent (0 K values); only the gap
+//! moves with temperature. All numbers are for unstrained zinc-blende material: strain in
+//! pseudomorphic layers shifts the band edges and is not included.
+//!
+//! # Temperature
+//! Γ gaps follow Varshni (1967), E_g(T) = E_g(0) − αT²/(T + β), except GaP, for which
+//! VMR 2001 give E_g(T) = E_g(0) + a[1 − coth(θ/T)] ([`GapLaw`]). Temperatures above
+//! 800 K are refused: InSb melts near there, and the fits rest mostly on data at and below
+//! room temperature. A ternary whose modelled gap closes below 800 K (InAsSb near x ≈ 0.6
+//! above ~600 K) is refused at those temperatures with an error naming the closing point.
+//!
+//! # Ternaries: composition variable and interpolation
+//! For a ternary between the binaries A (at x = 1) and B (at x = 0), every quantity is
+//!
+//! P(x) = x·P_A + (1 − x)·P_B − x(1 − x)·C,
+//!
+//! with the bowing C of VMR 2001 for the Γ gap, VBO, mass, E_P and Δ_so (zero where the
+//! compilation gives none or we did not recall one: then this is Vegard's linear law) and
+//! C = 0 for ε_r and the lattice constant. The gap is bowed after each binary's gap is
+//! taken to the temperature (the bowing is temperature independent).
+//!
+//! | name   | formula               | x is        | A (x = 1) | B (x = 0) |
+//! |--------|-----------------------|-------------|-----------|-----------|
+//! | AlGaAs | Al_x Ga_(1−x) As      | Al fraction | AlAs      | GaAs      |
+//! | InGaAs | In_x Ga_(1−x) As      | In fraction | InAs      | GaAs      |
+//! | InAlAs | In_x Al_(1−x) As      | In fraction | InAs      | AlAs      |
+//! | GaAsSb | GaAs_(1−x) Sb_x       | Sb fraction | GaSb      | GaAs      |
+//! | InAsSb | InAs_(1−x) Sb_x       | Sb fraction | InSb      | InAs      |
+//! | AlAsSb | AlAs_(1−x) Sb_x       | Sb fraction | AlSb      | AlAs      |
+//!
+//! Only AlGaAs has an x-dependent bowing, C(E_g^Γ) = −127 + 1310x meV with x the Al
+//! fraction, so only there does the choice of x matter beyond naming the end binaries.
+//! Note that VMR 2001 write InGaAs as Ga_x In_(1−x) As; here x is the In fraction.
+//!
+//! # Nonparabolicity
+//! [`Material::nonparabolicity`] returns α in E(1 + αE) = ħ²k²/2m* (1/eV), by Kane's
+//! two-band form α₂ = (1 − m*/m_e)²/E_g (≈ 1/E_g) or the three-band form with the split-off
+//! band α₃ = α₂·(3 + 4y + 2y²)/((1 + y)(3 + 2y)), y = Δ_so/E_g (Nelson, Miller & Kleinman,
+//! Phys. Rev. B 35, 7770 (1987); Ekenberg, Phys. Rev. B 40, 7714 (1989); attributions
+//! recalled). The three-band form is the default ([`Nonparabolicity::ThreeBand`]): it uses
+//! the table's Δ_so, which rivals the gap in the antimonides and InAs, where the two-band
+//! form overestimates α by up to 11 %. Both are lowest-order expansions about the band edge.
 
 use crate::error::InputError;
 
