@@ -485,8 +485,7 @@ pub struct Material {
 }
 
 /// Model of the Γ conduction-band nonparabolicity α in E (1 + α E) = ħ²k² / (2 m*),
-/// E measured from the band edge. See [`nonparabolicity_two_band`] and
-/// [`nonparabolicity_three_band`] for the formulas.
+/// E measured from the band edge; formulas in the module docs (section Nonparabolicity).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Nonparabolicity {
     /// Kane two-band model (conduction and one valence band).
@@ -516,10 +515,10 @@ impl Nonparabolicity {
 /// Two-band Kane nonparabolicity, 1/eV: α₂ = (1 − m*/m_e)² / E_g.
 ///
 /// `band_gap` in meV (> 0), `mass` = m*/m_e. This is the Δ_so → 0 (and Δ_so → ∞) limit of
-/// [`nonparabolicity_three_band`]; for m* ≪ m_e it is the familiar α ≈ 1/E_g. The factor
+/// `nonparabolicity_three_band`; for m* ≪ m_e it is the familiar α ≈ 1/E_g. The factor
 /// (1 − m*/m_e)² comes from the free-electron term ħ²k²/2m_e of Kane's Hamiltonian, as in
 /// Ekenberg, Phys. Rev. B 40, 7714 (1989) (attribution recalled from memory).
-pub fn nonparabolicity_two_band(band_gap: f64, mass: f64) -> f64 {
+fn nonparabolicity_two_band(band_gap: f64, mass: f64) -> f64 {
     let gap_ev = band_gap * 1e-3;
     (1.0 - mass).powi(2) / gap_ev
 }
@@ -535,8 +534,9 @@ pub fn nonparabolicity_two_band(band_gap: f64, mass: f64) -> f64 {
 /// m_e/m* = 1 + (E_P/3)(2/E_g + 1/(E_g + Δ)) gives the formula above. The bracket equals
 /// 1 − y/(2y² + 5y + 3): it is 1 at y = 0 and y → ∞ and smallest, 1 − 1/(5 + 2√6) ≈ 0.899,
 /// at y = √(3/2).
-/// `band_gap` and `spin_orbit` in meV (gap > 0, Δ ≥ 0), `mass` = m*/m_e.
-pub fn nonparabolicity_three_band(band_gap: f64, spin_orbit: f64, mass: f64) -> f64 {
+/// `band_gap` and `spin_orbit` in meV (gap > 0, Δ ≥ 0), `mass` = m*/m_e. Private: the
+/// public path is [`Material::nonparabolicity`], whose inputs are validated.
+fn nonparabolicity_three_band(band_gap: f64, spin_orbit: f64, mass: f64) -> f64 {
     let y = spin_orbit / band_gap;
     nonparabolicity_two_band(band_gap, mass) * (3.0 + 4.0 * y + 2.0 * y * y) / ((1.0 + y) * (3.0 + 2.0 * y))
 }
