@@ -1,5 +1,6 @@
-//! The model: unit systems and layered structures. Profiles only, no numerics
-//! beyond exact integrals of piecewise-defined functions.
+//! The model: unit systems, layered structures and material parameters. Profiles and
+//! tables only, no numerics beyond exact integrals of piecewise-defined functions.
 
+pub mod materials;
 pub mod stack;
 pub mod units;
