@@ -55,3 +55,17 @@ def test_load_rejects_foreign_files(tmp_path):
     np.savez(path, header=np.array(json.dumps({"format": "other"})))
     with pytest.raises(ValueError, match="`path`"):
         sw.load(path)
+
+
+def test_batch_round_trip(tmp_path):
+    g = sw.FourierGrid(-8.0, 8.0, 96)
+    batch = sw.solve_batch(g, [0.5 * g.x**2 + f * g.x for f in (0.0, 0.1, 0.2)], 3)
+    path = tmp_path / "b.npz"
+    batch.save(path)
+    back = sw.load(path)
+    assert len(back) == len(batch)
+    np.testing.assert_array_equal(back.energies, batch.energies)
+    np.testing.assert_array_equal(back.residuals, batch.residuals)
+    for a, b in zip(back, batch):
+        np.testing.assert_array_equal(a.vectors, b.vectors)
+        np.testing.assert_array_equal(a.hamiltonian.potential, b.hamiltonian.potential)

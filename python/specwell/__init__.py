@@ -25,6 +25,7 @@ from specwell._core import (
     __version__,
     eigh,
     solve_batch,
+    unit_constants,
 )
 from specwell.io import load, save
 from specwell.states import autocorrelation_spectrum, eigenstate, gaussian_packet, superposition
@@ -52,4 +53,5 @@ __all__ = [
     "save",
     "solve_batch",
     "superposition",
+    "unit_constants",
 ]

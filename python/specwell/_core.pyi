@@ -505,6 +505,8 @@ class Run:
     @property
     def units(self) -> str:
         """Unit system name."""
+    def save(self, path: str) -> None:
+        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
     def __len__(self) -> int: ...
 
 def unit_constants(units: str) -> Tuple[float, float]:
@@ -523,6 +525,8 @@ class Batch:
     def wavefunctions(self, index: int, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) of item ``index``, shape (count, len(x))."""
     def __getitem__(self, key: int, /) -> Spectrum: ...
+    def save(self, path: str) -> None:
+        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
     def __len__(self) -> int: ...
 
 def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.ArrayLike, Sequence[_PotentialLike]],

@@ -62,11 +62,11 @@ def _hamiltonian_from_parts(header: dict, f) -> "_core.Hamiltonian":
 
 
 def save(result, path: Union[str, os.PathLike]) -> None:
-    """Save a Spectrum or a Run to ``path`` (.npz): plain arrays plus a JSON header.
+    """Save a Spectrum, Batch or Run to ``path`` (.npz): plain arrays plus a JSON header.
 
     Parameters
     ----------
-    result : Spectrum or Run
+    result : Spectrum, Batch or Run
         The result to save.
     path : str or path-like
         Destination; numpy appends ``.npz`` if missing.
@@ -77,6 +77,18 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         arrays = dict(energies=result.energies, vectors=result.vectors, residuals=result.residuals,
                       x=result.x)
         _hamiltonian_parts(result.hamiltonian, header, arrays)
+    elif isinstance(result, _core.Batch):
+        header = {"format": _FORMAT, "version": _VERSION, "type": "Batch", "items": []}
+        arrays = {"energies": result.energies, "residuals": result.residuals,
+                  "vectors": np.stack([s.vectors for s in result])}
+        per_item = []
+        for s in result:
+            h, a = {"method": s.method, "iterations": s.iterations}, {}
+            _hamiltonian_parts(s.hamiltonian, h, a)
+            header["items"].append(h)
+            per_item.append(a)
+        for key in per_item[0]:
+            arrays[key] = np.stack([a[key] for a in per_item])
     elif isinstance(result, _core.Run):
         header = {"format": _FORMAT, "version": _VERSION, "type": "Run", "units": result.units,
                   "basis": _basis_header(result.grid), "absorbed_norm": result.absorbed_norm,
@@ -85,7 +97,7 @@ def save(result, path: Union[str, os.PathLike]) -> None:
                       mean_p=result.mean_p, energy=result.energy, autocorrelation=result.autocorrelation,
                       record_steps=np.asarray(result.record_steps, dtype=np.int64), x=result.x)
     else:
-        raise TypeError(f"`result` must be a specwell result (Spectrum, Run, ...); got {type(result).__name__}")
+        raise TypeError(f"`result` must be a specwell result (Spectrum, Batch, Run); got {type(result).__name__}")
     np.savez(path, header=np.array(json.dumps(header)), **arrays)
 
 
@@ -118,7 +130,17 @@ def _load_run(header: dict, f: dict):
                                  header["cancelled"])
 
 
-_LOADERS: dict = {"Run": _load_run}
+def _load_batch(header: dict, f: dict):
+    spectra = []
+    for i, h in enumerate(header["items"]):
+        parts = {k: v[i] for k, v in f.items() if k in ("potential", "mass")}
+        ham = _hamiltonian_from_parts(h, parts)
+        spectra.append(_core._spectrum_from_parts(ham, f["energies"][i], f["vectors"][i], f["residuals"][i],
+                                                  h["method"], h["iterations"]))
+    return _core._batch_from_spectra(spectra)
+
+
+_LOADERS: dict = {"Run": _load_run, "Batch": _load_batch}
 
 
 def _save_method(self, path: Union[str, os.PathLike]) -> None:
@@ -127,5 +149,5 @@ def _save_method(self, path: Union[str, os.PathLike]) -> None:
 
 
 # Results save themselves through the one writer above.
-for _cls in (_core.Spectrum,):
+for _cls in (_core.Spectrum, _core.Batch, _core.Run):
     _cls.save = _save_method

@@ -93,7 +93,8 @@ def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, uni
     Parameters
     ----------
     times : ndarray
-        Uniformly spaced record times starting at t0.
+        Uniformly spaced record times starting at t0 (a run's ``times``: when ``steps`` is
+        not a multiple of ``record_every`` the final, closer record is dropped here).
     autocorrelation : ndarray
         C(t) at those times.
     units : str
@@ -115,8 +116,12 @@ def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, uni
     if t.ndim != 1 or t.shape != c.shape or len(t) < 4:
         raise ValueError("`times` and `autocorrelation` must be 1-D of equal length >= 4")
     dt = np.diff(t)
-    if not np.allclose(dt, dt[0], rtol=1e-9, atol=0) or dt[0] == 0:
-        raise ValueError("`times` must be uniformly spaced and increasing")
+    if len(dt) >= 2 and not np.isclose(dt[-1], dt[0], rtol=1e-9, atol=0) and np.allclose(dt[:-1], dt[0], rtol=1e-9, atol=0):
+        # A run always records its final state; a shorter last interval is not part of
+        # the uniform record.
+        t, c, dt = t[:-1], c[:-1], dt[:-1]
+    if not np.allclose(dt, dt[0], rtol=1e-9, atol=0) or not dt[0] > 0:
+        raise ValueError("`times` must be uniformly spaced and increasing (a shorter final interval is allowed)")
     if window not in _WINDOWS:
         raise ValueError(f"`window` must be one of {', '.join(repr(w) for w in _WINDOWS)}; got {window!r}")
     if int(pad) < 1:
@@ -137,7 +142,11 @@ def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, uni
     order = np.argsort(energies)
     energies, intensity = energies[order], np.abs(spec[order])
     if energy_range is not None:
-        lo, hi = energy_range
+        lo, hi = (float(v) for v in energy_range)
+        nyquist = np.pi * hbar / dt[0]
+        if not (np.isfinite(lo) and np.isfinite(hi) and lo < hi) or hi <= -nyquist or lo >= nyquist:
+            raise ValueError(f"`energy_range` must be an interval (lo < hi) overlapping [{-nyquist:.6g}, {nyquist:.6g}), "
+                             f"the energies a record spacing of {dt[0]:.6g} resolves (±πħ/Δt); got {energy_range}")
         keep = (energies >= lo) & (energies <= hi)
         energies, intensity = energies[keep], intensity[keep]
     return energies, intensity

@@ -97,6 +97,18 @@ impl FourierGrid {
     pub fn inverse(&self) -> &Arc<dyn Fft<f64>> {
         &self.inverse
     }
+    /// Refuse points outside [start, stop] (naming `argument` and the first offender).
+    pub fn check_in_box(&self, argument: &str, x: &[f64]) -> Result<(), InputError> {
+        match x.iter().position(|&v| !(v >= self.start && v <= self.stop)) {
+            None => Ok(()),
+            Some(i) => Err(InputError::range(
+                argument,
+                format!("points inside the periodic box [{}, {}] (outside it the series repeats periodically)", self.start, self.stop),
+                format!("{} at index {i}", x[i]),
+            )),
+        }
+    }
+
     /// Whether n is even, i.e. the grid has a Nyquist mode.
     pub fn has_nyquist(&self) -> bool {
         self.x.len().is_multiple_of(2)
@@ -252,8 +264,11 @@ impl Basis for FourierGrid {
     fn points(&self) -> &[f64] {
         &self.x
     }
+    /// The trigonometric interpolant at `x`, which must lie in the box [start, stop]
+    /// (outside it the series repeats periodically, which is rarely what a caller means).
     fn evaluate(&self, coefs: MatRef<'_, f64>, x: &[f64]) -> Result<Mat<f64>, InputError> {
         check_finite("x", x)?;
+        self.check_in_box("x", x)?;
         let scale = 1.0 / self.dx.sqrt();
         let values = Mat::from_fn(coefs.nrows(), coefs.ncols(), |i, j| coefs[(i, j)] * scale);
         Ok(self.interpolate(values.as_ref(), x))

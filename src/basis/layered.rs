@@ -117,11 +117,11 @@ impl LayeredBasis {
 
     /// ψ(z) of the states whose coefficients are the columns of `coefs` (N × k), as a
     /// z.len() × k matrix: the trigonometric series evaluated at s(z). With
-    /// B-orthonormal coefficients ∫|ψ|² dz = 1. Points outside the box are wrapped
-    /// into it (the problem is periodic).
+    /// B-orthonormal coefficients ∫|ψ|² dz = 1. Points must lie in the box.
     fn evaluate_at(&self, coefs: MatRef<'_, f64>, z: &[f64]) -> std::result::Result<Mat<f64>, InputError> {
         self.check_coefs(coefs)?;
         check_finite("z", z)?;
+        self.grid.check_in_box("x", z)?;
         // ψ̃(s) = Σ_p x̂_p e^{i k_p s}/√S with x̂ the unitary DFT of c: the series of the
         // samples c_j/√(S/N) on the s-grid, the even-N Nyquist function being the
         // normalised cosine √(2/S)·cos(πNs/S).

@@ -5,14 +5,14 @@ use pyo3::exceptions::{PyMemoryError, PyRuntimeError, PyValueError};
 use pyo3::prelude::*;
 
 pyo3::create_exception!(
-    _core,
+    specwell,
     ConvergenceError,
     PyRuntimeError,
     "An iterative method missed its tolerance. Attributes: `energies` (best estimates), `iterations`, and `residuals` (eigensolvers) or `rates` |dE/dτ| (imaginary-time relaxation)."
 );
 
 pyo3::create_exception!(
-    _core,
+    specwell,
     AccuracyWarning,
     pyo3::exceptions::PyUserWarning,
     "Round-off limits the accuracy of some computed levels (see `Spectrum.attainable_accuracy`)."

@@ -1,0 +1,73 @@
+"""What a new user trips over first: clear errors naming the argument, results that save,
+names that print as ``specwell.…``. Physics references are named where a value is checked."""
+
+import warnings
+
+import numpy as np
+import pytest
+
+import specwell as sw
+
+
+def test_exceptions_print_as_specwell_names():
+    assert sw.ConvergenceError.__module__ == "specwell"
+    assert sw.AccuracyWarning.__module__ == "specwell"
+    assert issubclass(sw.AccuracyWarning, UserWarning)
+    assert callable(sw.unit_constants) and "unit_constants" in sw.__all__
+
+
+def test_unit_constants_match_codata():
+    # ħ²/2m_e in meV nm² and ħ in meV fs from scipy.constants (CODATA). specwell uses
+    # CODATA 2018; scipy ≥ 1.15 carries CODATA 2022, whose m_e differs by 1.4e-9.
+    import scipy.constants as C
+    h2m, hbar = sw.unit_constants("semiconductor")
+    assert h2m == pytest.approx(C.hbar**2 / (2 * C.m_e) / (C.e * 1e-3) * 1e18, rel=5e-9)
+    assert hbar == pytest.approx(C.hbar / (C.e * 1e-3) * 1e15, rel=1e-9)
+
+
+def test_autocorrelation_spectrum_accepts_a_shorter_final_record():
+    # Harmonic oscillator, ψ(0) = ground state: C(t) = e^{−iE0 t} with E0 = 1/2 (textbook),
+    # so the spectrum peaks at 1/2. 1001 steps with record_every=10 append a final record.
+    g = sw.FourierGrid(-10, 10, 128)
+    prop = sw.SplitStep(g, 0.5 * g.x**2, dt=0.01)
+    psi0 = np.exp(-g.x**2 / 2).astype(complex)
+    run = prop.run(psi0 / np.sqrt(np.sum(abs(psi0) ** 2) * g.dx), 1001, record_every=10)
+    assert np.diff(run.times)[-1] < np.diff(run.times)[0]
+    e, s = sw.autocorrelation_spectrum(run.times, run.autocorrelation, pad=16)
+    assert e[np.argmax(s)] == pytest.approx(0.5, abs=2 * np.pi / run.times[-1])
+
+
+def test_autocorrelation_energy_range_past_nyquist_is_an_error():
+    t = np.arange(64) * 0.1
+    c = np.exp(-1j * 0.5 * t)
+    with pytest.raises(ValueError, match="`energy_range`"):
+        sw.autocorrelation_spectrum(t, c, energy_range=(100.0, 200.0))
+
+
+def test_wavefunctions_outside_a_periodic_box_are_refused():
+    g = sw.FourierGrid(-5, 5, 64)
+    st = sw.Hamiltonian(g, 0.5 * g.x**2).solve(2)
+    st.wavefunctions(np.array([-5.0, 0.0, 5.0]))  # the box ends are fine
+    with pytest.raises(ValueError, match="`x`.*box"):
+        st.wavefunctions(np.array([0.0, 7.0]))
+
+
+def test_splitstep_mass_array_names_the_argument():
+    g = sw.FourierGrid(-5, 5, 64)
+    with pytest.raises(TypeError, match="`mass`"):
+        sw.SplitStep(g, 0.5 * g.x**2, mass=np.ones(64), dt=0.01)
+
+
+def test_heterostructure_where_samples_are_expected_says_so():
+    g = sw.FourierGrid(-5, 40, 64)
+    stack = sw.Heterostructure([sw.Layer(10, 200, 0.09), sw.Layer(10, 0, 0.067), sw.Layer(10, 200, 0.09)])
+    with pytest.raises(TypeError, match="Heterostructure"):
+        sw.SplitStep(g, stack, dt=0.01, units="semiconductor")
+    with pytest.raises(TypeError, match="Heterostructure"):
+        sw.solve_batch(g, [stack], 2, units="semiconductor")
+
+
+def test_order4_imaginary_time_message_uses_the_api_values():
+    g = sw.FourierGrid(-5, 5, 64)
+    with pytest.raises(ValueError, match="`order` must be 2 in imaginary time"):
+        sw.SplitStep(g, 0.5 * g.x**2, dt=0.01, order=4, imaginary_time=True)
