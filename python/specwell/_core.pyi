@@ -8,7 +8,7 @@ import numpy.typing as npt
 __all__ = [
     "AccuracyWarning", "Batch", "ConvergenceError", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
     "METHODS", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
-    "_batch_from_spectra", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
+    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
 ]
 __version__: str
 UNITS: list[str]
@@ -261,7 +261,7 @@ class Spectrum:
         """The Hamiltonian whose eigenpairs these are."""
     @property
     def attainable_accuracy(self) -> npt.NDArray[np.float64]:
-        """Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min), shape (count,).
+        """Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min, E_unit), shape (count,), with E_unit the lowest kinetic quantum of the domain.
 
         Above 1e-8, ``solve`` issues a ``specwell.AccuracyWarning``.
         """
@@ -325,9 +325,31 @@ def eigh(a: npt.ArrayLike) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.floa
 
 @final
 class Layer:
-    """One layer: thickness (nm, > 0), conduction-band edge (meV), effective mass (m_e, > 0)."""
+    """One layer: thickness (nm, > 0), conduction-band edge (meV), effective mass (m_e, > 0).
 
-    def __new__(cls, thickness: float, band_edge: float, mass: float) -> Layer: ...
+    Parameters
+    ----------
+    thickness, band_edge, mass : float
+        nm, meV, m_e.
+    doping : float, keyword-only
+        Net ionized dopant density (cm⁻³; donors > 0, acceptors < 0), for Schrödinger-Poisson.
+    permittivity : float or None, keyword-only
+        Static relative permittivity ε_r (needed where there is charge).
+    nonparabolicity : float, keyword-only
+        α (1/eV) of the energy-dependent mass m(E) = m (1 + α (E − E_c)) (two-band Kane form).
+    """
+
+    def __new__(cls, thickness: float, band_edge: float, mass: float, *, doping: float = 0.0,
+                permittivity: Optional[float] = None, nonparabolicity: float = 0.0) -> Layer: ...
+    @property
+    def doping(self) -> float:
+        """Net ionized dopant density (cm⁻³)."""
+    @property
+    def permittivity(self) -> Optional[float]:
+        """Static relative permittivity, or None."""
+    @property
+    def nonparabolicity(self) -> float:
+        """Non-parabolicity α (1/eV)."""
     @property
     def thickness(self) -> float:
         """Thickness (nm)."""
@@ -552,6 +574,8 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.A
     Batch
     """
 
+def _layer_from_parts(thickness: float, band_edge: float, mass: float, doping: float,
+                      permittivity: Optional[float], nonparabolicity: float) -> Layer: ...
 def _spectrum_from_parts(hamiltonian: Hamiltonian, energies: npt.ArrayLike, vectors: npt.ArrayLike,
                          residuals: npt.ArrayLike, method: str, iterations: int) -> Spectrum: ...
 def _split_step_from_parts(grid: FourierGrid, potential: _PotentialLike, mass: float, dt: float, order: int, units: str,

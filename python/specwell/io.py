@@ -34,13 +34,26 @@ def _basis_from_header(h: dict):
     raise ValueError(f"unknown basis kind {h['kind']!r} in file")
 
 
+def _stack_header(stack) -> dict:
+    return {"field_kv_cm": stack.field_kv_cm,
+            "layers": [{"thickness": l.thickness, "band_edge": l.band_edge, "mass": l.mass, "doping": l.doping,
+                        "permittivity": l.permittivity, "nonparabolicity": l.nonparabolicity} for l in stack.layers]}
+
+
+def _stack_from_header(h: dict):
+    # Version-1 files store layers as [thickness, band_edge, mass].
+    layers = [_core.Layer(*l) if isinstance(l, list) else _core.Layer(
+        l["thickness"], l["band_edge"], l["mass"], doping=l["doping"], permittivity=l["permittivity"],
+        nonparabolicity=l["nonparabolicity"]) for l in h["layers"]]
+    return _core.Heterostructure(layers, h["field_kv_cm"])
+
+
 def _hamiltonian_parts(h, header: dict, arrays: dict) -> None:
     """Header entries and arrays that rebuild the Hamiltonian `h`."""
     header.update(units=h.units, basis=_basis_header(h.basis))
     stack = h.heterostructure
     if stack is not None:
-        header["heterostructure"] = {"field_kv_cm": stack.field_kv_cm,
-                                     "layers": [[l.thickness, l.band_edge, l.mass] for l in stack.layers]}
+        header["heterostructure"] = _stack_header(stack)
         return
     arrays["potential"] = h.potential
     mass = h.mass
@@ -54,9 +67,7 @@ def _hamiltonian_parts(h, header: dict, arrays: dict) -> None:
 def _hamiltonian_from_parts(header: dict, f) -> "_core.Hamiltonian":
     basis = _basis_from_header(header["basis"])
     if "heterostructure" in header:
-        h = header["heterostructure"]
-        stack = _core.Heterostructure([_core.Layer(*l) for l in h["layers"]], h["field_kv_cm"])
-        return _core.Hamiltonian(basis, stack, units=header["units"])
+        return _core.Hamiltonian(basis, _stack_from_header(header["heterostructure"]), units=header["units"])
     mass = f["mass"] if header["mass_is_array"] else header["mass"]
     return _core.Hamiltonian(basis, f["potential"], mass, header["units"])
 

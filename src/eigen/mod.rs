@@ -113,7 +113,8 @@ impl SolveOptions {
 ///   (positive in the leftmost region where |ψ| exceeds 1 % of its maximum);
 /// * `residuals`: ‖Hψ − EBψ‖ (coefficient 2-norm), energy units;
 /// * `attainable`: the relative accuracy round-off allows each level,
-///   ε‖H‖/max(|E_i|, E_max − E_min) (a backward-stable solve perturbs H by ~ε‖H‖);
+///   ε‖H‖/max(|E_i|, E_max − E_min, E_unit) (a backward-stable solve perturbs H by ~ε‖H‖;
+///   see [`attainable_accuracy`]);
 /// * `method`: the method that produced the pairs (`Dense` also when the automatic
 ///   choice started iteratively and finished densely; `note` then says why).
 #[derive(Debug, Clone)]
@@ -132,12 +133,15 @@ pub struct Spectrum {
 /// warning: round-off then limits them to fewer than 8 significant digits.
 pub const ACCURACY_WARN: f64 = 1e-8;
 
-/// ε‖H‖/max(|E_i|, E_max − E_min) per level (see [`Spectrum::attainable`]).
-pub fn attainable_accuracy(norm: f64, energies: &[f64]) -> Vec<f64> {
+/// ε‖H‖/max(|E_i|, E_max − E_min, E_unit) per level (see [`Spectrum::attainable`]);
+/// E_unit is the problem's [`DiscreteProblem::energy_scale`], so a level at E ≈ 0
+/// (a free particle's) is judged against the kinetic quantum, not against zero.
+pub fn attainable_accuracy(p: &dyn DiscreteProblem, energies: &[f64]) -> Vec<f64> {
     let lo = energies.iter().cloned().fold(f64::INFINITY, f64::min);
     let hi = energies.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
-    let spread = (hi - lo).max(0.0);
-    energies.iter().map(|e| f64::EPSILON * norm / e.abs().max(spread).max(f64::MIN_POSITIVE)).collect()
+    let floor = (hi - lo).max(0.0).max(p.energy_scale()).max(f64::MIN_POSITIVE);
+    let norm = p.norm_estimate();
+    energies.iter().map(|e| f64::EPSILON * norm / e.abs().max(floor)).collect()
 }
 
 impl Spectrum {
@@ -166,7 +170,7 @@ impl Spectrum {
         crate::error::check_finite("energies", &energies)?;
         crate::error::check_finite("residuals", &residuals)?;
         crate::error::check_finite("vectors", &column_major(&vectors))?;
-        let attainable = attainable_accuracy(hamiltonian.norm_estimate(), &energies);
+        let attainable = attainable_accuracy(hamiltonian.problem(), &energies);
         Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None })
     }
 
@@ -319,7 +323,7 @@ fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, method: Metho
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(p, &energies, &vectors);
-    let attainable = attainable_accuracy(p.norm_estimate(), &energies);
+    let attainable = attainable_accuracy(p, &energies);
     let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, attainable, note };
     Ok((spectrum, guards))
 }

@@ -23,18 +23,28 @@ use std::f64::consts::PI;
 /// Electron potential energy gradient of a 1 kV/cm field, in meV/nm.
 pub const MEV_PER_NM_PER_KV_CM: f64 = 0.1;
 
-/// One layer: thickness (nm, > 0), conduction band edge (meV), effective mass (m_e, > 0).
+/// One layer: thickness (nm, > 0), conduction band edge (meV), effective mass (m_e, > 0),
+/// and optionally
+/// * `doping`: net ionized dopant density in cm⁻³ (donors > 0, acceptors < 0), used by
+///   the Schrödinger-Poisson solver;
+/// * `permittivity`: static relative permittivity ε_r (> 0), needed where charge is;
+/// * `nonparabolicity`: α in 1/eV (trade convention) of the energy-dependent mass
+///   m(E) = m (1 + α (E − E_c)) (two-band Kane form, Nelson, Miller & Kleinman 1987).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Layer {
     pub thickness: f64,
     pub band_edge: f64,
     pub mass: f64,
+    pub doping: f64,
+    pub permittivity: Option<f64>,
+    pub nonparabolicity: f64,
 }
 
 impl Layer {
-    /// A layer; validated when it enters a [`Heterostructure`].
+    /// A layer with no doping, no permittivity and a parabolic band; validated when it
+    /// enters a [`Heterostructure`].
     pub fn new(thickness: f64, band_edge: f64, mass: f64) -> Self {
-        Layer { thickness, band_edge, mass }
+        Layer { thickness, band_edge, mass, doping: 0.0, permittivity: None, nonparabolicity: 0.0 }
     }
 }
 
@@ -63,6 +73,17 @@ impl Heterostructure {
             }
             if !(l.mass.is_finite() && l.mass > 0.0) {
                 return Err(InputError::range(&format!("layers[{i}].mass"), "a finite number of m_e > 0", l.mass));
+            }
+            if !(l.doping.is_finite() && l.doping.abs() <= 1e23) {
+                return Err(InputError::range(&format!("layers[{i}].doping"), "a finite density in cm^-3 with |doping| <= 1e23", l.doping));
+            }
+            if let Some(e) = l.permittivity {
+                if !(e.is_finite() && e > 0.0) {
+                    return Err(InputError::range(&format!("layers[{i}].permittivity"), "a finite relative permittivity > 0 (or None)", e));
+                }
+            }
+            if !(l.nonparabolicity.is_finite() && l.nonparabolicity >= 0.0 && l.nonparabolicity <= 100.0) {
+                return Err(InputError::range(&format!("layers[{i}].nonparabolicity"), "a finite α in [0, 100] 1/eV", l.nonparabolicity));
             }
         }
         if !field_kv_cm.is_finite() {
@@ -99,6 +120,18 @@ impl Heterostructure {
     /// Interface positions 0 = z_0 < … < z_n = L.
     pub fn interfaces(&self) -> &[f64] {
         &self.bounds
+    }
+
+    /// Band edges of the two claddings (meV): the first layer's edge plus the field
+    /// term at z = 0 and the last layer's at z = L. A state below both is bound.
+    pub fn cladding_edges(&self) -> (f64, f64) {
+        let n = self.layers.len();
+        (self.layers[0].band_edge + self.field_energy(0.0), self.layers[n - 1].band_edge + self.field_energy(self.total_thickness()))
+    }
+
+    /// A copy with another field (kV/cm).
+    pub fn with_field(&self, field_kv_cm: f64) -> Result<Self, InputError> {
+        Heterostructure::new(self.layers.clone(), field_kv_cm)
     }
 
     /// Index of the layer whose material is found at z (padding included, right-continuous).

@@ -104,6 +104,15 @@ impl DiscreteProblem for FourierProblem {
         cmax * (std::f64::consts::PI / self.grid.dx()).powi(2) + vmax
     }
 
+    /// c_min·(2π/L)² of the periodic box.
+    fn energy_scale(&self) -> f64 {
+        let cmin = match &self.kinetic {
+            Kinetic::Uniform(c) => *c,
+            Kinetic::Profile(cs) => cs.iter().cloned().fold(f64::INFINITY, f64::min),
+        };
+        cmin * (2.0 * std::f64::consts::PI / (self.grid.stop() - self.grid.start())).powi(2)
+    }
+
     fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
         Some(Box::new(GridPreconditioner::with_potential(&self.grid, self.mean_kinetic(), self.potential.clone(), None)))
     }

@@ -59,6 +59,10 @@ impl DiscreteProblem for HermiteProblem {
         let vmax = self.potential.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
         self.c * (2.0 * b.size() as f64 + 1.0) / (b.length() * b.length()) + vmax
     }
+    /// c/L², the oscillator quantum of the basis' own length scale.
+    fn energy_scale(&self) -> f64 {
+        self.c / (self.basis.length() * self.basis.length())
+    }
     /// Jacobi: P_j = 1/(|H_nn − E_j| + δ), δ = 10⁻³·(ħ²/2m_e)/L².
     fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
         let l = self.basis.length();

@@ -437,6 +437,10 @@ impl DiscreteProblem for LayeredProblem {
         let vmax = self.basis.pieces().iter().fold(0.0_f64, |m, p| m.max(p.v_mid.abs() + 0.5 * (p.z1 - p.z0) * p.slope.abs()));
         self.units.hbar2_over_2me() * ks * ks * self.mass_max + vmax
     }
+    /// (ħ²/2m_e)(2π/S)²·(1/m_max): the lowest kinetic quantum of the periodic box in s.
+    fn energy_scale(&self) -> f64 {
+        self.units.hbar2_over_2me() * (2.0 * PI / self.basis.s_length()).powi(2) * self.mass_max
+    }
     /// Kinetic-energy preconditioner in the mass coordinate, (ħ²/2m_e) k_s² + σ on the
     /// s-grid (kinetic part only, σ the lowest kinetic quantum: the potential-weighted
     /// form stalled on 1025-mode wells in the mass coordinate (measured), this one

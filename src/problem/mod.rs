@@ -72,6 +72,10 @@ pub trait DiscreteProblem: Send + Sync {
     /// An upper estimate of the norm of the standard-form operator B^{-1/2} A B^{-1/2}
     /// (energy units), used for round-off floors.
     fn norm_estimate(&self) -> f64;
+    /// A natural energy unit of the problem, the lowest kinetic quantum of its domain
+    /// (e.g. c·(2π/L)² on a periodic box): the scale below which |E| counts as zero
+    /// when judging round-off.
+    fn energy_scale(&self) -> f64;
     /// A symmetric positive definite preconditioner approximating (A − σB)⁻¹.
     fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
         None

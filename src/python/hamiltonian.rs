@@ -397,8 +397,9 @@ impl PySpectrum {
     fn iterations(&self) -> usize {
         self.inner.iterations
     }
-    /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min),
-    /// shape (count,). Above 1e-8 a `specwell.AccuracyWarning` is issued by `solve`.
+    /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min, E_unit),
+    /// E_unit the lowest kinetic quantum of the domain; shape (count,). Above 1e-8 a
+    /// `specwell.AccuracyWarning` is issued by `solve`.
     #[getter]
     fn attainable_accuracy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.attainable)

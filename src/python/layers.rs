@@ -10,7 +10,8 @@ use pyo3::prelude::*;
 use pyo3::types::{PyList, PyType};
 use std::sync::Arc;
 
-/// One layer of a heterostructure: thickness (nm), conduction-band edge (meV), effective mass (m_e).
+/// One layer of a heterostructure: thickness (nm), conduction-band edge (meV), effective
+/// mass (m_e); optionally doping (cm⁻³), relative permittivity and non-parabolicity (1/eV).
 #[pyclass(name = "Layer", module = "specwell._core", frozen)]
 #[derive(Clone)]
 pub struct PyLayer {
@@ -20,9 +21,10 @@ pub struct PyLayer {
 #[pymethods]
 impl PyLayer {
     #[new]
-    fn new(thickness: f64, band_edge: f64, mass: f64) -> Self {
+    #[pyo3(signature = (thickness, band_edge, mass, *, doping=0.0, permittivity=None, nonparabolicity=0.0))]
+    fn new(thickness: f64, band_edge: f64, mass: f64, doping: f64, permittivity: Option<f64>, nonparabolicity: f64) -> Self {
         // Validated by Heterostructure (which names the layer index).
-        PyLayer { inner: Layer::new(thickness, band_edge, mass) }
+        PyLayer { inner: Layer { thickness, band_edge, mass, doping, permittivity, nonparabolicity } }
     }
     #[getter]
     fn thickness(&self) -> f64 {
@@ -36,16 +38,53 @@ impl PyLayer {
     fn mass(&self) -> f64 {
         self.inner.mass
     }
+    /// Net ionized dopant density (cm⁻³): donors > 0, acceptors < 0.
+    #[getter]
+    fn doping(&self) -> f64 {
+        self.inner.doping
+    }
+    /// Static relative permittivity, or None.
+    #[getter]
+    fn permittivity(&self) -> Option<f64> {
+        self.inner.permittivity
+    }
+    /// Non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)).
+    #[getter]
+    fn nonparabolicity(&self) -> f64 {
+        self.inner.nonparabolicity
+    }
     fn __repr__(&self) -> String {
-        format!("Layer(thickness={}, band_edge={}, mass={})", self.inner.thickness, self.inner.band_edge, self.inner.mass)
+        layer_text(&self.inner)
     }
     fn __eq__(&self, other: &Bound<'_, PyAny>) -> bool {
         other.cast::<PyLayer>().map(|o| o.get().inner == self.inner).unwrap_or(false)
     }
-    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (f64, f64, f64)) {
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, (f64, f64, f64, f64, Option<f64>, f64))> {
         let l = &slf.get().inner;
-        (slf.get_type(), (l.thickness, l.band_edge, l.mass))
+        let ctor = slf.py().import("specwell._core")?.getattr("_layer_from_parts")?;
+        Ok((ctor, (l.thickness, l.band_edge, l.mass, l.doping, l.permittivity, l.nonparabolicity)))
     }
+}
+
+/// `Layer(…)` as typed, optional parts only when set.
+fn layer_text(l: &Layer) -> String {
+    let mut s = format!("Layer({}, {}, {}", l.thickness, l.band_edge, l.mass);
+    if l.doping != 0.0 {
+        s += &format!(", doping={:e}", l.doping);
+    }
+    if let Some(e) = l.permittivity {
+        s += &format!(", permittivity={e}");
+    }
+    if l.nonparabolicity != 0.0 {
+        s += &format!(", nonparabolicity={}", l.nonparabolicity);
+    }
+    s + ")"
+}
+
+/// Rebuild a Layer (target of `Layer.__reduce__`).
+#[pyfunction]
+pub fn _layer_from_parts(thickness: f64, band_edge: f64, mass: f64, doping: f64, permittivity: Option<f64>, nonparabolicity: f64) -> PyLayer {
+    PyLayer { inner: Layer { thickness, band_edge, mass, doping, permittivity, nonparabolicity } }
 }
 
 /// A stack of layers occupying z ∈ [0, total_thickness) in semiconductor units,
@@ -105,12 +144,7 @@ impl PyHeterostructure {
         self.inner.layers().len()
     }
     fn __repr__(&self) -> String {
-        let layers: Vec<String> = self
-            .inner
-            .layers()
-            .iter()
-            .map(|l| format!("Layer({}, {}, {})", l.thickness, l.band_edge, l.mass))
-            .collect();
+        let layers: Vec<String> = self.inner.layers().iter().map(layer_text).collect();
         format!("Heterostructure([{}], field_kv_cm={})", layers.join(", "), self.inner.field_kv_cm())
     }
     fn _repr_html_(&self) -> String {

@@ -25,6 +25,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(hamiltonian::solve_batch, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_batch_from_spectra, m)?)?;
     m.add_class::<layers::PyLayer>()?;
+    m.add_function(wrap_pyfunction!(layers::_layer_from_parts, m)?)?;
     m.add_class::<layers::PyHeterostructure>()?;
     m.add_class::<propagate::PySplitStep>()?;
     m.add_class::<propagate::PyRun>()?;
