@@ -2,6 +2,8 @@
 
 use faer::Mat;
 
+pub mod banded;
+
 /// Parallelism for a dense kernel of about `flops` floating-point operations:
 /// sequential below 2·10⁷ (measured: rayon's fork/join then costs 50–100 µs, more
 /// than a 200×210×20 product takes), faer's global setting above.
