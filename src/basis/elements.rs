@@ -600,4 +600,225 @@ mod tests {
             assert!((e - exact).abs() < 1e-11, "n={n}: {e}, err {:e}", e - exact);
         }
     }
+
+    /// ħ²/(2m_e) in meV·nm² from CODATA 2018 (h = 6.62607015e-34 J s and e =
+    /// 1.602176634e-19 C exact since the 2019 SI, m_e = 9.1093837015e-31 kg; values
+    /// recalled from memory, same as src/units.rs): 38.0998… meV nm².
+    fn hbar2_over_2me_mev_nm2() -> f64 {
+        let hbar = 6.626_070_15e-34 / (2.0 * PI);
+        let me = 9.109_383_7015e-31;
+        let mev = 1.602_176_634e-22;
+        hbar * hbar / (2.0 * me) / mev * 1e18
+    }
+
+    /// Bound levels of the BenDaniel-Duke finite well of width `a`, depth `v0`, masses
+    /// `mw` (well) and `mb` (barrier): roots in (0, v0) of Bastard's equations (Bastard
+    /// 1981, Phys. Rev. B 24, 5693) with k = √(E m_w/c), κ = √((V0 − E) m_b/c):
+    /// even (k/m_w) tan(ka/2) = κ/m_b, odd −(k/m_w) cot(ka/2) = κ/m_b, multiplied by
+    /// cos resp. sin so that the functions have no poles; bracketed on a fine grid and
+    /// bisected to adjacent floating-point numbers.
+    fn bastard_levels(a: f64, v0: f64, mw: f64, mb: f64, c: f64) -> Vec<f64> {
+        let f = |e: f64, odd: bool| {
+            let k = (e * mw / c).sqrt();
+            let kap = ((v0 - e) * mb / c).sqrt();
+            let (s, co) = (k * a / 2.0).sin_cos();
+            if odd {
+                k / mw * co + kap / mb * s
+            } else {
+                k / mw * s - kap / mb * co
+            }
+        };
+        let mut roots = Vec::new();
+        let grid = 20000;
+        for odd in [false, true] {
+            for i in 0..grid {
+                let (mut lo, mut hi) = (v0 * i as f64 / grid as f64, v0 * (i + 1) as f64 / grid as f64);
+                if i == 0 {
+                    lo = 1e-300;
+                }
+                if i + 1 == grid {
+                    hi = v0.next_down();
+                }
+                let (flo, fhi) = (f(lo, odd), f(hi, odd));
+                if flo == 0.0 {
+                    roots.push(lo);
+                    continue;
+                }
+                if flo.signum() == fhi.signum() {
+                    continue;
+                }
+                loop {
+                    let mid = 0.5 * (lo + hi);
+                    if mid <= lo || mid >= hi {
+                        break;
+                    }
+                    if f(mid, odd).signum() == flo.signum() {
+                        lo = mid;
+                    } else {
+                        hi = mid;
+                    }
+                }
+                roots.push(0.5 * (lo + hi));
+            }
+        }
+        roots.sort_by(f64::total_cmp);
+        roots
+    }
+
+    /// Breakpoints of the finite-well test: the well [−a/2, a/2] cut in `well_pieces`,
+    /// barrier elements of lengths `grow` outwards on both sides.
+    fn well_breakpoints(a: f64, well_pieces: usize, grow: &[f64]) -> Vec<f64> {
+        let mut left = vec![-a / 2.0];
+        for &g in grow {
+            let x = left[left.len() - 1] - g;
+            left.push(x);
+        }
+        left.reverse();
+        let mut bp = left;
+        for k in 1..=well_pieces {
+            bp.push(-a / 2.0 + a * k as f64 / well_pieces as f64);
+        }
+        for &g in grow {
+            let x = bp[bp.len() - 1] + g;
+            bp.push(x);
+        }
+        bp
+    }
+
+    fn finite_well(order: usize, well_pieces: usize, grow: &[f64]) -> (Vec<f64>, Vec<f64>, usize) {
+        let (a, v0, mw, mb) = (10.0, 250.0, 0.067, 0.092);
+        let c = hbar2_over_2me_mev_nm2();
+        let exact = bastard_levels(a, v0, mw, mb, c);
+        let eb = ElementBasis::new(&well_breakpoints(a, well_pieces, grow), order, None).unwrap();
+        let inside = |x: f64| x.abs() < a / 2.0;
+        let (vals, _, _) = solve(&eb, c, |x| if inside(x) { 1.0 / mw } else { 1.0 / mb }, |x| if inside(x) { 0.0 } else { v0 }, exact.len());
+        (vals, exact, eb.size())
+    }
+
+    #[test]
+    fn bendaniel_duke_finite_well() {
+        let c = hbar2_over_2me_mev_nm2();
+        assert!((c - 38.09982).abs() < 1e-5, "{c}");
+        let (vals, exact, n) = finite_well(16, 2, &[2.0, 6.0, 18.0, 54.0, 162.0]);
+        assert!(n <= 200, "{n} unknowns");
+        assert_eq!(exact.len(), 3, "levels {exact:?}");
+        for (e, x) in vals.iter().zip(&exact) {
+            assert!(rel(*e, *x) <= 1e-11, "{e} vs {x}: {:e}", rel(*e, *x));
+        }
+    }
+
+    /// Zeros of Ai and Ai' on the negative axis, magnitudes ascending, `count` of each:
+    /// Ai(0) = 1/(3^{2/3} Γ(2/3)), Ai'(0) = −1/(3^{1/3} Γ(1/3)) (A&S 1964, 10.4.4–5;
+    /// digits recalled from memory), then the Airy equation y'' = x y integrated towards
+    /// −∞ by Taylor steps (recurrence a_{n+2} = (x_0 a_n + a_{n−1})/((n+1)(n+2)),
+    /// 40 terms, step 1/8: truncation far below rounding), sign changes of y and y'
+    /// located on each step and bisected on the step's Taylor polynomial.
+    fn airy_zeros(count: usize) -> (Vec<f64>, Vec<f64>) {
+        let (mut y, mut dy) = (0.355_028_053_887_817_239_26, -0.258_819_403_792_806_798_41);
+        let h = -0.125;
+        let mut x0 = 0.0;
+        let (mut za, mut zd) = (Vec::new(), Vec::new());
+        let taylor = |x0: f64, y: f64, dy: f64| {
+            let mut a = [0.0; 40];
+            a[0] = y;
+            a[1] = dy;
+            a[2] = x0 * y / 2.0;
+            for n in 1..38 {
+                a[n + 2] = (x0 * a[n] + a[n - 1]) / ((n + 1) * (n + 2)) as f64;
+            }
+            a
+        };
+        let eval = |a: &[f64; 40], t: f64| {
+            let (mut v, mut d) = (0.0, 0.0);
+            for n in (0..40).rev() {
+                v = v * t + a[n];
+                if n > 0 {
+                    d = d * t + n as f64 * a[n];
+                }
+            }
+            (v, d)
+        };
+        while za.len() < count || zd.len() < count {
+            let a = taylor(x0, y, dy);
+            let (y1, dy1) = eval(&a, h);
+            for (which, f0, f1) in [(0, y, y1), (1, dy, dy1)] {
+                if f0.signum() != f1.signum() {
+                    let (mut lo, mut hi) = (0.0_f64, h);
+                    let pick = |t: f64| if which == 0 { eval(&a, t).0 } else { eval(&a, t).1 };
+                    for _ in 0..200 {
+                        let mid = 0.5 * (lo + hi);
+                        if pick(mid).signum() == f0.signum() {
+                            lo = mid;
+                        } else {
+                            hi = mid;
+                        }
+                    }
+                    let z = -(x0 + 0.5 * (lo + hi));
+                    if which == 0 { za.push(z) } else { zd.push(z) }
+                }
+            }
+            x0 += h;
+            y = y1;
+            dy = dy1;
+        }
+        za.truncate(count);
+        zd.truncate(count);
+        (za, zd)
+    }
+
+    #[test]
+    fn airy_zeros_agree_with_the_published_table() {
+        // Abramowitz & Stegun 1964, Table 10.13 (first six zeros of Ai and Ai', recalled
+        // from memory to the digits shown): a cross-check of the ODE-based zeros.
+        let (za, zd) = airy_zeros(6);
+        let ta = [2.338_107_41, 4.087_949_44, 5.520_559_83, 6.786_708_09, 7.944_133_59, 9.022_650_85];
+        let td = [1.018_792_97, 3.248_197_58, 4.820_099_21, 6.163_307_36, 7.372_177_26, 8.488_486_73];
+        for k in 0..6 {
+            assert!((za[k] - ta[k]).abs() < 1e-8, "a_{k}: {} vs {}", za[k], ta[k]);
+            assert!((zd[k] - td[k]).abs() < 1e-8, "a'_{k}: {} vs {}", zd[k], td[k]);
+        }
+    }
+
+    #[test]
+    fn linear_v_shaped_potential_airy_levels() {
+        // −½ψ'' + |x|ψ = Eψ: for x > 0, ψ ∝ Ai(2^{1/3}(x − E)); even states have ψ'(0) = 0
+        // (E = |a'_k| 2^{−1/3}), odd ones ψ(0) = 0 (E = |a_k| 2^{−1/3}) (e.g. Griffiths 2005,
+        // problem 8.? on the "bouncing ball"; the Airy-function solution of a linear
+        // potential). The box [−16, 16] changes the lowest twelve by < 1e-20.
+        let (za, zd) = airy_zeros(6);
+        let s = 2f64.powf(-1.0 / 3.0);
+        let mut exact: Vec<f64> = za.iter().chain(&zd).map(|z| z * s).collect();
+        exact.sort_by(f64::total_cmp);
+        let eb = ElementBasis::new(&[-16.0, 0.0, 16.0], 14, Some(2.0)).unwrap();
+        let (vals, _, _) = solve(&eb, 0.5, |_| 1.0, f64::abs, 12);
+        for (k, (e, x)) in vals.iter().zip(&exact).enumerate() {
+            assert!(rel(*e, *x) <= 1e-11, "level {k}: {e} vs {x}: {:e}", rel(*e, *x));
+        }
+    }
+
+    /// Accuracy table for the report: `cargo test --lib elements_report -- --ignored --nocapture`.
+    #[test]
+    #[ignore]
+    fn elements_report_finite_well_convergence() {
+        let grows: [&[f64]; 4] = [&[2.0, 4.0, 8.0, 16.0, 32.0], &[2.0, 4.0, 8.0, 16.0, 32.0, 64.0, 128.0], &[2.0, 6.0, 18.0, 54.0, 162.0], &[3.0, 9.0, 27.0, 81.0, 162.0]];
+        for grow in grows {
+            println!("barrier elements {grow:?} nm");
+            for order in [8, 12, 16] {
+                for pieces in [1, 2, 3] {
+                    let (vals, exact, n) = finite_well(order, pieces, grow);
+                    let errs: Vec<String> = vals.iter().zip(&exact).map(|(e, x)| format!("{:.1e}", rel(*e, *x))).collect();
+                    println!("p={order:2} well elements={pieces} unknowns={n:3}  rel. errors {}", errs.join(" "));
+                }
+            }
+        }
+        // Raw band-solver eigenvalues vs the Rayleigh-quotient refinement (box, HO).
+        let eb = ElementBasis::new(&[0.0, 3.0], 16, Some(0.5)).unwrap();
+        let (_, _, pencil) = solve(&eb, 0.5, |_| 1.0, |_| 0.0, 1);
+        let (raw, _) = banded::lowest(&pencil.a, &pencil.b, 10).unwrap();
+        let (refined, _) = pencil.lowest(10).unwrap();
+        for k in 0..10 {
+            let exact = ((k + 1) * (k + 1)) as f64 * PI * PI / 18.0;
+            println!("box n={} raw {:.1e} refined {:.1e}", k + 1, rel(raw[k], exact), rel(refined[k], exact));
+        }
+    }
 }
