@@ -212,7 +212,7 @@ impl Tridiagonal {
     /// inverse iteration with partial pivoting (LAPACK `dstein`'s scheme): close
     /// shifts are separated by 10ε|λ|, and vectors of eigenvalues closer than
     /// 10⁻³‖T‖ are Gram-Schmidt orthogonalised against each other every sweep.
-    fn eigenvectors(&self, vals: &[f64]) -> Mat<f64> {
+    pub(crate) fn eigenvectors(&self, vals: &[f64]) -> Mat<f64> {
         let n = self.d.len();
         let k = vals.len();
         let mut z = Mat::<f64>::zeros(n, k);
