@@ -422,7 +422,11 @@ impl ElementPencil {
     /// the kinetic part is a sum of non-negative terms, so it carries no cancellation
     /// error of size ε‖A‖‖u‖² (unlike the band product), and the Rayleigh quotient of a
     /// computed eigenvector is accurate relative to the eigenvalue.
-    pub fn energy(&self, u: &[f64]) -> f64 {
+    /// Errors if `u` does not have one entry per unknown.
+    pub fn energy(&self, u: &[f64]) -> Result<f64, InputError> {
+        if u.len() != self.b.len() {
+            return Err(InputError::Length { argument: "u".into(), expected: self.b.len(), got: u.len() });
+        }
         let m = self.order + 1;
         let n_el = self.stiff.len() / m;
         let mut loc = vec![0.0; m];
@@ -438,7 +442,7 @@ impl ElementPencil {
                 pot += self.massv[e * m + q] * loc[q] * loc[q];
             }
         }
-        kin + pot
+        Ok(kin + pot)
     }
 
     /// Lowest `count` eigenpairs by the banded solver ([`banded::lowest`]): energies
@@ -466,11 +470,12 @@ impl ElementPencil {
                 u[i] = v[(i, j)];
             }
             let nb: f64 = u.iter().zip(&self.b).map(|(x, b)| b * x * x).sum();
-            let rq = self.energy(&u) / nb;
             // Keep the solver's value if the quotient is not finite (cannot happen for
             // finite input; guards the refinement only).
-            if rq.is_finite() {
-                *val = rq;
+            if let Ok(e) = self.energy(&u) {
+                if (e / nb).is_finite() {
+                    *val = e / nb;
+                }
             }
         }
     }
@@ -686,13 +691,18 @@ mod tests {
     }
 
     fn finite_well(order: usize, well_pieces: usize, grow: &[f64]) -> (Vec<f64>, Vec<f64>, usize) {
+        let (vals, exact, eb, _) = finite_well_states(order, well_pieces, grow);
+        (vals, exact, eb.size())
+    }
+
+    fn finite_well_states(order: usize, well_pieces: usize, grow: &[f64]) -> (Vec<f64>, Vec<f64>, ElementBasis, Mat<f64>) {
         let (a, v0, mw, mb) = (10.0, 250.0, 0.067, 0.092);
         let c = hbar2_over_2me_mev_nm2();
         let exact = bastard_levels(a, v0, mw, mb, c);
         let eb = ElementBasis::new(&well_breakpoints(a, well_pieces, grow), order, None).unwrap();
         let inside = |x: f64| x.abs() < a / 2.0;
-        let (vals, _, _) = solve(&eb, c, |x| if inside(x) { 1.0 / mw } else { 1.0 / mb }, |x| if inside(x) { 0.0 } else { v0 }, exact.len());
-        (vals, exact, eb.size())
+        let (vals, vecs, _) = solve(&eb, c, |x| if inside(x) { 1.0 / mw } else { 1.0 / mb }, |x| if inside(x) { 0.0 } else { v0 }, exact.len());
+        (vals, exact, eb, vecs)
     }
 
     #[test]
@@ -704,6 +714,18 @@ mod tests {
         assert_eq!(exact.len(), 3, "levels {exact:?}");
         for (e, x) in vals.iter().zip(&exact) {
             assert!(rel(*e, *x) <= 1e-11, "{e} vs {x}: {:e}", rel(*e, *x));
+        }
+        // The natural interface condition of the weak form: ψ'/m continuous at the
+        // interface x = a/2 (BenDaniel & Duke 1966), while ψ' itself jumps by m_b/m_w.
+        let grow = [2.0, 6.0, 18.0, 54.0, 162.0];
+        let (_, _, eb, vecs) = finite_well_states(16, 2, &grow);
+        let x0 = 5.0_f64;
+        let left = eb.evaluate_derivative(vecs.as_ref(), &[x0.next_down()]).unwrap();
+        let right = eb.evaluate_derivative(vecs.as_ref(), &[x0]).unwrap();
+        for j in 0..3 {
+            let (fl, fr) = (left[(0, j)] / 0.067, right[(0, j)] / 0.092);
+            assert!((fl - fr).abs() <= 1e-7 * fl.abs(), "state {j}: ψ'/m {fl} vs {fr}");
+            assert!((left[(0, j)] / right[(0, j)] - 0.067 / 0.092).abs() < 1e-6);
         }
     }
 
