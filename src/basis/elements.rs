@@ -842,5 +842,17 @@ mod tests {
             let exact = ((k + 1) * (k + 1)) as f64 * PI * PI / 18.0;
             println!("box n={} raw {:.1e} refined {:.1e}", k + 1, rel(raw[k], exact), rel(refined[k], exact));
         }
+        let eb = ElementBasis::new(&[-10.0, 10.0], 14, Some(1.25)).unwrap();
+        let (vals, _, _) = solve(&eb, 0.5, |_| 1.0, |x| 0.5 * x * x, 10);
+        let worst = vals.iter().enumerate().map(|(n, e)| (e - (n as f64 + 0.5)).abs()).fold(0.0, f64::max);
+        println!("harmonic oscillator, {} unknowns: max |E_n − (n+½)| = {worst:.1e}", eb.size());
+        let (za, zd) = airy_zeros(6);
+        let s3 = 2f64.powf(-1.0 / 3.0);
+        let mut exact: Vec<f64> = za.iter().chain(&zd).map(|z| z * s3).collect();
+        exact.sort_by(f64::total_cmp);
+        let eb = ElementBasis::new(&[-16.0, 0.0, 16.0], 14, Some(2.0)).unwrap();
+        let (vals, _, _) = solve(&eb, 0.5, |_| 1.0, f64::abs, 12);
+        let worst = vals.iter().zip(&exact).map(|(e, x)| rel(*e, *x)).fold(0.0, f64::max);
+        println!("|x| well, {} unknowns: max relative error of 12 levels = {worst:.1e}", eb.size());
     }
 }
