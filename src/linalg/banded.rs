@@ -99,18 +99,18 @@ impl SymBand {
         Ok(())
     }
 
-    /// y = A x.
+    /// y = A x (x and y of length ≥ n).
     pub fn mul_vec(&self, x: &[f64], y: &mut [f64]) {
         let (n, kd) = (self.n, self.kd);
         y[..n].fill(0.0);
         for j in 0..n {
             let col = &self.data[j * (kd + 1)..(j + 1) * (kd + 1)];
+            let m = kd.min(n - 1 - j);
             let xj = x[j];
-            y[j] += col[0] * xj;
-            let mut acc = 0.0;
-            for k in 1..=kd.min(n - 1 - j) {
-                y[j + k] += col[k] * xj;
-                acc += col[k] * x[j + k];
+            let mut acc = col[0] * xj;
+            for ((a, xi), yi) in col[1..=m].iter().zip(&x[j + 1..=j + m]).zip(&mut y[j + 1..=j + m]) {
+                *yi += a * xj;
+                acc += a * xi;
             }
             y[j] += acc;
         }
@@ -620,26 +620,26 @@ fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, Num
     let mut x = vec![0.0; n];
     let mut worst = 0.0_f64;
     for j in 0..k {
-        for i in 0..n {
-            x[i] = v[(i, j)];
+        for (i, xi) in x.iter_mut().enumerate() {
+            *xi = v[(i, j)];
         }
         c.mul_vec(&x, &mut y);
         let r = (0..n).map(|i| (y[i] - vals[j] * x[i]).powi(2)).sum::<f64>().sqrt();
         worst = worst.max(r / (sq * norm.max(f64::MIN_POSITIVE)));
         if !(r <= rtol) {
             return Err(NumericalError::EigenFailed(format!(
-                "banded inverse iteration: residual {r:e} of pair {j} exceeds {rtol:e}"
+                "banded eigenvectors: residual {r:e} of pair {j} exceeds {rtol:e}"
             )));
         }
     }
     let otol = VERIFY_TOL * sq;
+    let g = v.transpose() * v;
     for j in 0..k {
         for i in 0..=j {
-            let g: f64 = (0..n).map(|r| v[(r, i)] * v[(r, j)]).sum();
-            let dev = (g - if i == j { 1.0 } else { 0.0 }).abs();
+            let dev = (g[(i, j)] - if i == j { 1.0 } else { 0.0 }).abs();
             if !(dev <= otol) {
                 return Err(NumericalError::EigenFailed(format!(
-                    "banded inverse iteration: |v_{i}·v_{j} − δ| = {dev:e} exceeds {otol:e}"
+                    "banded eigenvectors: |v_{i}·v_{j} − δ| = {dev:e} exceeds {otol:e}"
                 )));
             }
         }
