@@ -377,13 +377,14 @@ fn rotate(w: &mut [f64], n: usize, kd: usize, v: usize, first: usize, cs: f64, s
     let u = v - 1;
     // Rows u and v, columns first..u−1: (A[u,col], A[v,col]) adjacent in column col,
     // at col·ld + (u − col) = u + col·kd (stride kd ≥ 2).
-    if u > first {
-        let start = u + first * kd;
-        for pair in w[start..start + (u - first) * kd].chunks_exact_mut(kd) {
-            let (x, y) = (pair[0], pair[1]);
-            pair[0] = cs * x + sn * y;
-            pair[1] = cs * y - sn * x;
-        }
+    // (A plain strided index loop: `chunks_exact_mut` costs an integer division per
+    // rotation.)
+    let mut at = u + first * kd;
+    for _ in first..u {
+        let (x, y) = (w[at], w[at + 1]);
+        w[at] = cs * x + sn * y;
+        w[at + 1] = cs * y - sn * x;
+        at += kd;
     }
     // 2×2 block [[a, b], [b, d]].
     let (a, b, d) = (w[u * ld], w[u * ld + 1], w[v * ld]);
