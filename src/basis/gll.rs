@@ -149,9 +149,9 @@ impl Gll {
         let mut dpre = 0.0;
         match derivs {
             None => {
-                for j in 0..m {
-                    values[j] = pre;
-                    pre *= x - self.nodes[j];
+                for (v, &xn) in values.iter_mut().zip(&self.nodes) {
+                    *v = pre;
+                    pre *= x - xn;
                 }
                 let mut suf = 1.0;
                 for j in (0..m).rev() {
@@ -207,7 +207,7 @@ fn gll_nodes(p: usize) -> Vec<f64> {
         x[j] = xj;
         x[p - j] = -xj;
     }
-    if p % 2 == 0 {
+    if p.is_multiple_of(2) {
         x[p / 2] = 0.0;
     }
     x
@@ -403,10 +403,10 @@ mod tests {
             assert_eq!(v, v2);
         }
         // Exact at nodes.
-        for i in 0..m {
-            g.lagrange(g.nodes()[i], &mut v);
-            for j in 0..m {
-                assert_eq!(v[j], if i == j { 1.0 } else { 0.0 });
+        for (i, &xn) in g.nodes().iter().enumerate() {
+            g.lagrange(xn, &mut v);
+            for (j, &vj) in v.iter().enumerate() {
+                assert_eq!(vj, if i == j { 1.0 } else { 0.0 });
             }
         }
     }
