@@ -855,4 +855,34 @@ mod tests {
         let worst = vals.iter().zip(&exact).map(|(e, x)| rel(*e, *x)).fold(0.0, f64::max);
         println!("|x| well, {} unknowns: max relative error of 12 levels = {worst:.1e}", eb.size());
     }
+
+    /// Timings of element pencils (harmonic oscillator on [−10, 10]) for the report:
+    /// `cargo test --release --lib elements_timing -- --ignored --nocapture`.
+    #[test]
+    #[ignore]
+    fn elements_timing() {
+        use std::time::Instant;
+        fn best<T>(reps: usize, mut f: impl FnMut() -> T) -> f64 {
+            let mut t = f64::INFINITY;
+            for _ in 0..reps {
+                let s = Instant::now();
+                std::hint::black_box(f());
+                t = t.min(s.elapsed().as_secs_f64());
+            }
+            t * 1e3
+        }
+        println!("element pencils, count = 10, ms (best of several): assemble | banded lowest | dense lowest");
+        for (order, n_el) in [(10, 15), (16, 9), (10, 50), (16, 31), (10, 200), (24, 83)] {
+            let len = 20.0 / n_el as f64;
+            let eb = ElementBasis::new(&[-10.0, 10.0], order, Some(len * (1.0 + 1e-9))).unwrap();
+            let ws = vec![1.0; eb.points().len()];
+            let vs: Vec<f64> = eb.points().iter().map(|x| 0.5 * x * x).collect();
+            let reps = if eb.size() < 600 { 30 } else { 3 };
+            let t_asm = best(reps, || eb.assemble(0.5, &ws, &vs).unwrap());
+            let pencil = eb.assemble(0.5, &ws, &vs).unwrap();
+            let t_band = best(reps, || pencil.lowest(10).unwrap());
+            let t_dense = best(reps.min(5), || pencil.lowest_dense(10).unwrap());
+            println!("p={order:2} elements={n_el:3} n={:5}: {t_asm:8.3} | {t_band:8.3} | {t_dense:9.3}", eb.size());
+        }
+    }
 }
