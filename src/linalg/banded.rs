@@ -24,6 +24,14 @@
 //!
 //! [`lowest_dense`] is the same problem through faer's dense self-adjoint
 //! eigensolver, the reference of the tests and a fallback for callers.
+//!
+//! Measured (release profile, count = 10, random SPD pencils, shared 2-core machine at
+//! load 4–8, best of 3–50 runs; `banded_timing` below): n = 150, kd = 10: 1.05 ms
+//! (Givens reduction 0.70, bisection 0.13, vectors 0.27, check 0.03) against 0.69 ms
+//! for the dense subset path (faer Householder + the same bisection) and 1.9 ms for
+//! faer's full dense solver; n = 500: 5.3–7.4 against 8.6–12 and 34–46 ms; n = 2000,
+//! kd = 10: 109–124 against 2200–2900 ms (full). The O(n²·kd) Givens reduction
+//! dominates; in the test profile at a quieter moment it took 0.27 ms at n = 150.
 
 use crate::eigen::subset::Tridiagonal;
 use crate::error::{Error, InputError, NumericalError};
