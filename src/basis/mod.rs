@@ -12,7 +12,9 @@
 //! * [`LayeredBasis`]: periodic sinc functions in the mass coordinate s = ∫m dz of a
 //!   heterostructure (generalized problem A c = E B c; coefficients B-orthonormal).
 
+pub mod elements;
 pub mod fourier;
+pub mod gll;
 pub mod hermite;
 pub mod hermite_math;
 pub mod layered;

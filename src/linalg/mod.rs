@@ -1,6 +1,8 @@
 //! Linear algebra that sees only matrices and operators: no basis, Hamiltonian,
 //! units or physics. Everything above (problems, spectra, propagators) calls in here.
 //!
+//! * [`banded`]: symmetric band matrices and the lowest pairs of a banded pencil with
+//!   diagonal B (band → tridiagonal by Givens rotations, Sturm bisection, back-transformation).
 //! * [`dense`]: all eigenpairs of a dense symmetric matrix (faer, with a backward-error
 //!   probe and a QR fallback), the lowest pairs of a matrix or of independent blocks.
 //! * [`subset`]: the lowest pairs only (tridiagonalisation, Sturm multisection,
@@ -9,6 +11,7 @@
 //! * [`lobpcg`]: the matrix-free block eigensolver and its operator/preconditioner traits.
 //! * [`rng`]: the one pseudo-random generator.
 
+pub mod banded;
 pub mod dense;
 pub mod generalized;
 pub mod lobpcg;

@@ -117,13 +117,13 @@ fn verified(a: MatRef<'_, f64>, vals: &[f64], v: &Mat<f64>, norm: f64) -> bool {
 }
 
 /// Symmetric tridiagonal T: diagonal `d` (N), off-diagonal `e` (N − 1).
-struct Tridiagonal {
+pub(crate) struct Tridiagonal {
     d: Vec<f64>,
     e: Vec<f64>,
     /// e_i² (Sturm recurrence).
     e2: Vec<f64>,
     /// max_i (|d_i| + |e_{i−1}| + |e_i|) ≥ ‖T‖₂ (Gershgorin).
-    norm: f64,
+    pub(crate) norm: f64,
     /// Gershgorin interval [lo, hi] containing the spectrum.
     lo: f64,
     hi: f64,
@@ -132,7 +132,7 @@ struct Tridiagonal {
 }
 
 impl Tridiagonal {
-    fn new(d: Vec<f64>, e: Vec<f64>) -> Self {
+    pub(crate) fn new(d: Vec<f64>, e: Vec<f64>) -> Self {
         let n = d.len();
         let radius = |i: usize| (if i > 0 { e[i - 1].abs() } else { 0.0 }) + (if i + 1 < n { e[i].abs() } else { 0.0 });
         let (mut lo, mut hi, mut norm) = (f64::INFINITY, f64::NEG_INFINITY, 0.0_f64);
@@ -171,7 +171,7 @@ impl Tridiagonal {
     /// any backward-stable dense solver). Multisection: every pass splits the
     /// current bracket at `LANES` points, and each Sturm count tightens the
     /// brackets of all wanted eigenvalues (as LAPACK `dstebz` reuses counts).
-    fn lowest_eigenvalues(&self, count: usize) -> Vec<f64> {
+    pub(crate) fn lowest_eigenvalues(&self, count: usize) -> Vec<f64> {
         let mut lower = vec![self.lo; count];
         let mut upper = vec![self.hi; count];
         let mut vals = Vec::with_capacity(count);
@@ -212,7 +212,7 @@ impl Tridiagonal {
     /// inverse iteration with partial pivoting (LAPACK `dstein`'s scheme): close
     /// shifts are separated by 10ε|λ|, and vectors of eigenvalues closer than
     /// 10⁻³‖T‖ are Gram-Schmidt orthogonalised against each other every sweep.
-    fn eigenvectors(&self, vals: &[f64]) -> Mat<f64> {
+    pub(crate) fn eigenvectors(&self, vals: &[f64]) -> Mat<f64> {
         let n = self.d.len();
         let k = vals.len();
         let mut z = Mat::<f64>::zeros(n, k);
