@@ -11,6 +11,8 @@
 //!   c_j = ψ(x_j)·sqrt(dx).
 //! * [`LayeredBasis`]: periodic sinc functions in the mass coordinate s = ∫m dz of a
 //!   heterostructure (generalized problem A c = E B c; coefficients B-orthonormal).
+//! * [`ElementBasis`]: Legendre spectral elements (Lagrange polynomials on GLL nodes, C0,
+//!   Dirichlet ends); coefficients are the nodal values, B-orthonormal in GLL quadrature.
 
 pub mod elements;
 pub mod fourier;
@@ -19,6 +21,7 @@ pub mod hermite;
 pub mod hermite_math;
 pub mod layered;
 
+pub use elements::ElementBasis;
 pub use fourier::FourierGrid;
 pub use hermite::HermiteBasis;
 pub use layered::LayeredBasis;
@@ -52,6 +55,8 @@ pub enum BasisRef {
     Fourier(Arc<FourierGrid>),
     /// A heterostructure's mass-coordinate basis (BenDaniel-Duke, generalized problem).
     Layered(Arc<LayeredBasis>),
+    /// Legendre spectral elements (banded generalized problem).
+    Elements(Arc<ElementBasis>),
 }
 
 impl BasisRef {
@@ -60,6 +65,7 @@ impl BasisRef {
             BasisRef::Hermite(b) => b.as_ref(),
             BasisRef::Fourier(g) => g.as_ref(),
             BasisRef::Layered(l) => l.as_ref(),
+            BasisRef::Elements(e) => e.as_ref(),
         }
     }
 }

@@ -252,6 +252,13 @@ pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Re
         "the dense path needs about three N×N float64 arrays (five for a heterostructure); use method=\"iterative\" for the lowest states of a large grid",
     )?;
     let par = par_for_dim(p.dim(), par);
+    if let Some(band) = p.band() {
+        let (mut e, v) = crate::linalg::banded::lowest_auto(band.a, band.b, count)?;
+        if let Some(q) = p.rayleigh_quotients(v.as_ref()) {
+            e = q;
+        }
+        return Ok((e, v));
+    }
     if generalized {
         let b = p.dense_b().ok_or_else(|| crate::error::NumericalError::EigenFailed("generalized problem without B".into()))?;
         return generalized::lowest_generalized(p.dense_a(), b.as_ref(), count, par);

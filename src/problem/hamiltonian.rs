@@ -2,6 +2,7 @@
 //! validates the input once and builds the [`DiscreteProblem`] of its basis. Energies
 //! and lengths are in the chosen [`Units`].
 
+use super::elements::ElementProblem;
 use super::fourier::FourierProblem;
 use super::hermite::HermiteProblem;
 use super::layered::LayeredProblem;
@@ -90,6 +91,14 @@ impl Hamiltonian {
             )
             .into());
         }
+        // On elements, one mass per element is expanded to the element's sample points.
+        let mass = match (&basis, mass) {
+            (BasisRef::Elements(e), Mass::Profile(ms)) if ms.len() == e.elements().len() && ms.len() != b.points().len() => {
+                let per = e.order() + 1;
+                Mass::Profile(ms.iter().flat_map(|&m| std::iter::repeat_n(m, per)).collect())
+            }
+            (_, m) => m,
+        };
         let kinetic = match &mass {
             Mass::Uniform(m) => {
                 check_mass(*m)?;
@@ -99,16 +108,21 @@ impl Hamiltonian {
                 if matches!(basis, BasisRef::Layered(_)) {
                     return Err(InputError::range("basis", "a HermiteBasis or FourierGrid (use Hamiltonian::layered for heterostructures)", "a LayeredBasis").into());
                 }
-                if !matches!(basis, BasisRef::Fourier(_)) {
+                if matches!(basis, BasisRef::Hermite(_)) {
                     return Err(InputError::range(
                         "mass",
-                        "a single positive number for a HermiteBasis (mass profiles need a FourierGrid)",
+                        "a single positive number for a HermiteBasis (mass profiles need a FourierGrid or an ElementBasis)",
                         "an array",
                     )
                     .into());
                 }
-                if ms.len() != b.size() {
-                    return Err(InputError::Length { argument: "mass".into(), expected: b.size(), got: ms.len() }.into());
+                let points = b.points().len();
+                if ms.len() != points {
+                    let expected = match &basis {
+                        BasisRef::Elements(e) => format!("one value per sample point ({points}, basis.x) or per element ({})", e.elements().len()),
+                        _ => format!("one value per grid point ({points})"),
+                    };
+                    return Err(InputError::range("mass", expected, format!("length {}", ms.len())).into());
                 }
                 if let Some(i) = ms.iter().position(|m| !(m.is_finite() && *m > 0.0)) {
                     return Err(InputError::range("mass", "finite and > 0 at every grid point", format!("{} at index {i}", ms[i])).into());
@@ -133,6 +147,13 @@ impl Hamiltonian {
                     Mass::Profile(ms) => ms.clone(),
                 };
                 Arc::new(FourierProblem::new(g.clone(), potential.clone(), kinetic.clone(), masses))
+            }
+            (BasisRef::Elements(e), _) => {
+                let masses = match &mass {
+                    Mass::Uniform(m) => vec![*m; e.points().len()],
+                    Mass::Profile(ms) => ms.clone(),
+                };
+                Arc::new(ElementProblem::new(e.clone(), units.hbar2_over_2me(), masses, &potential)?)
             }
             _ => return Err(InputError::range("basis", "a HermiteBasis or FourierGrid (use Hamiltonian::layered for heterostructures)", b.describe()).into()),
         };

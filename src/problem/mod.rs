@@ -10,9 +10,11 @@
 //! * [`fourier`]: Fourier-grid Hamiltonian (constant mass or BenDaniel-Duke profile).
 //! * [`hermite`]: Gauss-Hermite function basis (quadrature potential, parity blocks).
 //! * [`layered`]: a heterostructure's exact-layer Galerkin problem in the mass coordinate.
+//! * [`elements`]: Legendre spectral elements (banded A, diagonal B), any potential and mass.
 //! * [`hamiltonian`]: the user-facing [`Hamiltonian`]: basis + potential + mass + units,
 //!   holding one of the above.
 
+pub mod elements;
 pub mod fourier;
 pub mod hamiltonian;
 pub mod hermite;
@@ -20,6 +22,7 @@ pub mod layered;
 
 pub use hamiltonian::{Hamiltonian, Kinetic, Mass};
 
+use crate::linalg::banded::SymBand;
 use crate::linalg::lobpcg::Preconditioner;
 use faer::{Mat, MatRef};
 
@@ -42,6 +45,12 @@ pub struct SymmetryBlocks {
 
 /// Maps one coefficient vector of a coarse problem onto a finer basis.
 pub type Interpolator = Box<dyn Fn(&[f64]) -> Vec<f64> + Send + Sync>;
+
+/// A banded pencil: A symmetric with the band stored, B diagonal.
+pub struct BandPencil<'a> {
+    pub a: &'a SymBand,
+    pub b: &'a [f64],
+}
 
 /// A coarser discretisation of the same problem and the map of its vectors back.
 pub struct Coarse {
@@ -88,6 +97,17 @@ pub trait DiscreteProblem: Send + Sync {
     /// for a coarse start of an iteration; `None` when it cannot be coarsened.
     fn coarsened(&self, min_dim: usize) -> Option<Coarse> {
         let _ = min_dim;
+        None
+    }
+    /// A banded form of the pencil (B diagonal), when the problem has one.
+    fn band(&self) -> Option<BandPencil<'_>> {
+        None
+    }
+    /// Rayleigh quotients of the columns of `v` computed in a form more accurate than
+    /// vᵀAv (e.g. the kinetic energy as a sum of squares), to refine the energies of a
+    /// solve; `None` when the problem has no such form.
+    fn rayleigh_quotients(&self, v: MatRef<'_, f64>) -> Option<Vec<f64>> {
+        let _ = v;
         None
     }
     /// ⟨i|x|j⟩ of the states in the columns of `v` (B-orthonormal), length units.

@@ -1,8 +1,8 @@
 //! Python classes HermiteBasis and FourierGrid.
 
-use super::arrays::to_usize;
+use super::arrays::{to_usize, vec_f64};
 use super::errors::IntoPyResult;
-use crate::basis::{fourier, hermite, Basis, BasisRef, FourierGrid, HermiteBasis};
+use crate::basis::{fourier, hermite, Basis, BasisRef, ElementBasis, FourierGrid, HermiteBasis};
 use numpy::PyArray1;
 use super::display::key_value_table;
 use pyo3::exceptions::PyTypeError;
@@ -154,7 +154,68 @@ impl PyFourierGrid {
     }
 }
 
-/// Accept a HermiteBasis or a FourierGrid as `name`.
+/// Legendre spectral elements on [b_0, b_m] (see `_core.pyi`).
+#[pyclass(name = "ElementBasis", module = "specwell._core", frozen)]
+pub struct PyElementBasis {
+    pub inner: Arc<ElementBasis>,
+}
+
+#[pymethods]
+impl PyElementBasis {
+    #[new]
+    #[pyo3(signature = (breakpoints, order=None, max_element_length=None), text_signature = "(breakpoints, order=16, max_element_length=None)")]
+    fn new(py: Python<'_>, breakpoints: &Bound<'_, PyAny>, order: Option<&Bound<'_, PyAny>>, max_element_length: Option<f64>) -> PyResult<Self> {
+        let b = vec_f64(breakpoints, "breakpoints", None)?;
+        let order = order.map(|o| to_usize(o, "order", 2, crate::basis::gll::MAX_ORDER)).transpose()?.unwrap_or(16);
+        let inner = py.detach(|| ElementBasis::new(&b, order, max_element_length)).py(py)?;
+        Ok(PyElementBasis { inner: Arc::new(inner) })
+    }
+    /// Polynomial order p of every element.
+    #[getter]
+    fn order(&self) -> usize {
+        self.inner.order()
+    }
+    /// Number of unknowns (n_elements·p − 1: Dirichlet ends).
+    #[getter]
+    fn size(&self) -> usize {
+        self.inner.size()
+    }
+    /// Element edges b_0 < … < b_m after splitting (length n_elements + 1).
+    #[getter]
+    fn edges<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_vec(py, self.inner.edges())
+    }
+    /// The breakpoints given.
+    #[getter]
+    fn breakpoints<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.breakpoints())
+    }
+    /// Sample points where potentials and masses are evaluated: the GLL nodes of every
+    /// element, each element's ends moved one ulp inward (a jump at a breakpoint is seen
+    /// from the correct side); length n_elements·(p+1).
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.points())
+    }
+    /// Global nodes, both ends included (length n_elements·p + 1); the unknowns are the
+    /// values ψ at nodes[1:-1].
+    #[getter]
+    fn nodes<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.nodes())
+    }
+    fn __len__(&self) -> usize {
+        self.inner.size()
+    }
+    fn __repr__(&self) -> String {
+        self.inner.describe()
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (Vec<f64>, usize)) {
+        let b = &slf.get().inner;
+        (slf.get_type(), (b.edges(), b.order()))
+    }
+}
+
+/// Accept a HermiteBasis, FourierGrid or ElementBasis as `name`.
 pub fn extract_basis(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<BasisRef> {
     if let Ok(b) = obj.cast::<PyHermiteBasis>() {
         return Ok(BasisRef::Hermite(b.get().inner.clone()));
@@ -162,8 +223,11 @@ pub fn extract_basis(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<BasisRef> {
     if let Ok(g) = obj.cast::<PyFourierGrid>() {
         return Ok(BasisRef::Fourier(g.get().inner.clone()));
     }
+    if let Ok(e) = obj.cast::<PyElementBasis>() {
+        return Ok(BasisRef::Elements(e.get().inner.clone()));
+    }
     Err(PyTypeError::new_err(format!(
-        "`{name}` must be a specwell.HermiteBasis or specwell.FourierGrid; got {}",
+        "`{name}` must be a specwell.HermiteBasis, FourierGrid or ElementBasis; got {}",
         obj.get_type().name().map(|n| n.to_string()).unwrap_or_default()
     )))
 }
@@ -175,5 +239,6 @@ pub fn basis_to_py(py: Python<'_>, b: &BasisRef) -> PyResult<Py<PyAny>> {
         BasisRef::Fourier(g) => Py::new(py, PyFourierGrid { inner: g.clone() })?.into_any(),
         // A heterostructure's basis is presented as the grid (box and size) it was built on.
         BasisRef::Layered(l) => Py::new(py, PyFourierGrid { inner: Arc::new(l.grid().clone()) })?.into_any(),
+        BasisRef::Elements(e) => Py::new(py, PyElementBasis { inner: e.clone() })?.into_any(),
     })
 }

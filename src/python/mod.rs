@@ -19,6 +19,7 @@ use pyo3::prelude::*;
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<basis::PyHermiteBasis>()?;
     m.add_class::<basis::PyFourierGrid>()?;
+    m.add_class::<basis::PyElementBasis>()?;
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
     m.add_class::<hamiltonian::PyBatch>()?;
