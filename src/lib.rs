@@ -6,7 +6,7 @@
 //! ## Conventions
 //! * **Units** ([`units::Units`]): `Natural` (ħ = 1, kinetic −(1/2m)∂², mass 1 by
 //!   default), `Atomic` (same numbers in hartree/bohr/m_e), `Semiconductor` (nm, meV,
-//!   m_e, fs; ħ²/2m_e and ħ from CODATA 2018).
+//!   m_e, fs; ħ²/2m_e and ħ from CODATA 2022).
 //! * **Normalisation**: wavefunctions satisfy ∫|ψ(x)|² dx = 1; basis coefficient
 //!   vectors have unit 2-norm.
 //! * **Signs**: each eigenvector is positive in the leftmost region where |ψ|

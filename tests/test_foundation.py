@@ -362,8 +362,8 @@ def test_semiconductor_units_against_scipy_constants():
     curvature = 0.5 * mstar * C.m_e * omega**2 * 1e-18 / (1e-3 * C.e)
     b = np.sqrt(C.hbar / (mstar * C.m_e * omega)) * 1e9  # oscillator length, nm (~10.7)
     expected = ho_levels(10, hw)  # E_n = (n + ½)ħω (Griffiths §2.3), in meV
-    # Tolerance 2e-9 relative: the library pins CODATA 2018, scipy ships a newer
-    # CODATA (m_e revised by 1.4e-9 relative), so E may differ by ~7e-10.
+    # Tolerance 2e-9 relative (the library pins CODATA 2022, as scipy >= 1.15 does; an
+    # older scipy's CODATA 2018 m_e differs by 1.4e-9).
     for basis in (sw.HermiteBasis(40, 0.0, b), sw.HermiteBasis(80, 2.0, 1.2 * b), sw.FourierGrid(-12 * b, 12 * b, 128)):
         s = sw.Hamiltonian(basis, lambda x: curvature * x**2, mass=mstar, units="semiconductor").solve(10)
         assert s.units == "semiconductor"
@@ -372,9 +372,9 @@ def test_semiconductor_units_against_scipy_constants():
 
 def test_semiconductor_kinetic_prefactor_uses_exact_hbar():
     # ħ²/2m_e from the exact ħ = h/2π (scipy.constants.h, exact since SI 2019) and the
-    # CODATA 2018 electron mass 9.1093837015e-31 kg (recalled from memory) that units.rs
+    # CODATA 2022 electron mass 9.1093837139e-31 kg (Mohr et al. 2025) that units.rs
     # says it uses. For H = -(ħ²/2m_e) d² + x², E_0 = sqrt(ħ²/2m_e · 1) (Griffiths §2.3).
-    c_exact = (C.h / (2 * np.pi)) ** 2 / (2 * 9.1093837015e-31) / (1e-3 * C.e) * 1e18  # meV nm²
+    c_exact = (C.h / (2 * np.pi)) ** 2 / (2 * 9.1093837139e-31) / (1e-3 * C.e) * 1e18  # meV nm²
     basis = sw.HermiteBasis(20, 0.0, c_exact**0.25)
     e0 = sw.Hamiltonian(basis, lambda x: x**2, units="semiconductor").solve(1).energies[0]
     assert e0**2 == pytest.approx(c_exact, rel=1e-12)

@@ -187,7 +187,7 @@ def test_thomas_reiche_kuhn_sum_rule_constant_mass():
     d = s.dipole_matrix()
     e = s.energies
     # The definition f_if = (2m/ħ²)(E_f − E_i)|z_if|² applied to the dipole matrix. rtol 1e-8:
-    # specwell uses CODATA 2018 while scipy.constants may be a later CODATA (m_e differs ~1e-9).
+    # specwell and scipy >= 1.15 use CODATA 2022 (an older scipy's m_e differs ~1e-9).
     f_ref = (m / H2M) * (e[None, :] - e[:, None]) * d**2
     np.testing.assert_allclose(f, f_ref, rtol=1e-8, atol=1e-12)
     np.testing.assert_allclose(d, d.T, atol=1e-10)

@@ -21,10 +21,10 @@ from scipy.signal import find_peaks
 
 import specwell as sw
 
-# CODATA 2018 (Tiesinga et al., Rev. Mod. Phys. 93, 025010 (2021)):
-# ħ = 6.582119569e-16 eV s = 658.2119569 meV fs; ħ²/(2 m_e) = 38.0998212 meV nm².
+# CODATA 2022 (Mohr et al., Rev. Mod. Phys. 97, 025002 (2025)):
+# ħ = 6.582119569e-16 eV s = 658.2119569 meV fs; ħ²/(2 m_e) = 38.0998211 meV nm².
 HBAR_MEV_FS = 658.2119569
-HBAR2_2ME_MEV_NM2 = 38.0998212
+HBAR2_2ME_MEV_NM2 = 38.0998211
 
 
 # --------------------------------------------------------------------------- helpers
@@ -109,7 +109,7 @@ def test_free_gaussian_spreading_natural_units():
 
 def test_free_gaussian_spreading_semiconductor_units():
     # Same textbook law in nm/meV/fs with an effective mass (GaAs-like m = 0.067 m_e):
-    # ħt/(2mσ0²) = (ħ²/2m_e)/m · t/(ħσ0²), constants from CODATA 2018 (module header).
+    # ħt/(2mσ0²) = (ħ²/2m_e)/m · t/(ħσ0²), constants from CODATA 2022 (module header).
     m, s0 = 0.067, 4.0
     grid = sw.FourierGrid(-200.0, 200.0, 512)
     psi0 = sw.gaussian_packet(grid, -50.0, 0.0, s0, units="semiconductor")

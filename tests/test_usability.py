@@ -17,12 +17,11 @@ def test_exceptions_print_as_specwell_names():
 
 
 def test_unit_constants_match_codata():
-    # ħ²/2m_e in meV nm² and ħ in meV fs from scipy.constants (CODATA). specwell uses
-    # CODATA 2018; scipy ≥ 1.15 carries CODATA 2022, whose m_e differs by 1.4e-9.
+    # ħ²/2m_e in meV nm² and ħ in meV fs from scipy.constants (CODATA 2022 in scipy >= 1.15).
     import scipy.constants as C
     h2m, hbar = sw.unit_constants("semiconductor")
-    assert h2m == pytest.approx(C.hbar**2 / (2 * C.m_e) / (C.e * 1e-3) * 1e18, rel=5e-9)
-    assert hbar == pytest.approx(C.hbar / (C.e * 1e-3) * 1e15, rel=1e-9)
+    assert h2m == pytest.approx(C.hbar**2 / (2 * C.m_e) / (C.e * 1e-3) * 1e18, rel=1e-13)
+    assert hbar == pytest.approx(C.hbar / (C.e * 1e-3) * 1e15, rel=1e-13)
 
 
 def test_autocorrelation_spectrum_accepts_a_shorter_final_record():

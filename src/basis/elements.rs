@@ -163,6 +163,53 @@ impl ElementBasis {
         Ok(ElementBasis { breakpoints: breakpoints.to_vec(), elements, gll, nodes, points, weights })
     }
 
+    /// A mesh for a layered structure: element edges on every interface (`interfaces`
+    /// z_0 < … < z_n, the stack), layers split into pieces no longer than `max_length`,
+    /// and claddings of depth `depth.0` to the left of z_0 and `depth.1` to the right of
+    /// z_n covered by elements that double in length outwards from
+    /// h₀ = min(max_length/2, the adjacent layer's thickness), the last one stretched or
+    /// shrunk to end exactly at the depth. Graded claddings resolve every decay length
+    /// from h₀ outwards with a few elements (exponential tails need no more).
+    pub fn layered(interfaces: &[f64], order: usize, max_length: f64, depth: (f64, f64)) -> Result<Self, InputError> {
+        crate::error::check_positive("max_length", max_length)?;
+        crate::error::check_positive("cladding depth", depth.0)?;
+        crate::error::check_positive("cladding depth", depth.1)?;
+        let n = interfaces.len();
+        if n < 2 {
+            return Err(InputError::range("interfaces", "at least 2 values (one layer)", n));
+        }
+        let grade = |h0: f64, depth: f64| -> Vec<f64> {
+            // Distances from the stack edge of the cladding element edges.
+            let mut d = vec![0.0];
+            let mut h = h0.min(depth);
+            while d[d.len() - 1] + h < depth * (1.0 - 1e-12) {
+                let next = d[d.len() - 1] + h;
+                // Merge a last sliver into the previous element.
+                if depth - next < 0.5 * h {
+                    break;
+                }
+                d.push(next);
+                h *= 2.0;
+            }
+            d.push(depth);
+            d
+        };
+        let first = interfaces[1] - interfaces[0];
+        let last = interfaces[n - 1] - interfaces[n - 2];
+        let left = grade((0.5 * max_length).min(first), depth.0);
+        let right = grade((0.5 * max_length).min(last), depth.1);
+        let mut edges: Vec<f64> = left.iter().rev().map(|d| interfaces[0] - d).collect();
+        edges.pop(); // z_0 itself comes with the layers
+        for w in interfaces.windows(2) {
+            let pieces = (((w[1] - w[0]) / max_length) * (1.0 - 1e-12)).ceil().max(1.0) as usize;
+            for k in 0..pieces {
+                edges.push(w[0] + (w[1] - w[0]) * k as f64 / pieces as f64);
+            }
+        }
+        edges.extend(right.iter().map(|d| interfaces[n - 1] + d));
+        ElementBasis::new(&edges, order, None)
+    }
+
     /// Order p of every element.
     pub fn order(&self) -> usize {
         self.gll.order()

@@ -5,6 +5,7 @@
 //! size and the number of states), never the basis type.
 
 pub mod iterative;
+pub mod stack;
 
 use crate::basis::{fix_signs, BasisRef};
 use crate::error::{check_memory, Error, InputError, NumericalError, Result};
@@ -127,6 +128,10 @@ pub struct Spectrum {
     pub iterations: usize,
     pub attainable: Vec<f64>,
     pub note: Option<String>,
+    /// Per-level error estimates (energy units) of a self-converged solve ([`stack`]).
+    pub errors: Option<Vec<f64>>,
+    /// Per level: below both cladding band edges of a layered structure.
+    pub bound: Option<Vec<bool>>,
 }
 
 /// Levels whose attainable relative accuracy is worse than this carry an accuracy
@@ -171,7 +176,7 @@ impl Spectrum {
         crate::error::check_finite("residuals", &residuals)?;
         crate::error::check_finite("vectors", &column_major(&vectors))?;
         let attainable = attainable_accuracy(hamiltonian.problem(), &energies);
-        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None })
+        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None, errors: None, bound: None })
     }
 
     pub fn count(&self) -> usize {
@@ -331,7 +336,11 @@ fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, method: Metho
     fix_signs(h.basis().as_dyn(), &mut vectors);
     let residuals = residuals(p, &energies, &vectors);
     let attainable = attainable_accuracy(p, &energies);
-    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, attainable, note };
+    let bound = h.stack().map(|s| {
+        let (l, r) = s.cladding_edges();
+        energies.iter().map(|&e| e < l.min(r)).collect()
+    });
+    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, attainable, note, errors: None, bound };
     Ok((spectrum, guards))
 }
 

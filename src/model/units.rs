@@ -1,4 +1,4 @@
-//! Unit systems and CODATA 2018 constants.
+//! Unit systems and CODATA 2022 constants.
 //!
 //! Every solver works with two numbers taken from the unit system:
 //! * `hbar2_over_2me`: ħ²/(2 m_e) in energy·length², so the kinetic operator for
@@ -14,20 +14,21 @@
 
 use crate::error::InputError;
 
-/// CODATA 2018 exact and recommended values (SI).
-pub mod codata2018 {
+/// CODATA 2022 exact and recommended values (SI; Mohr et al., Rev. Mod. Phys. 97, 025002 (2025)),
+/// the values scipy.constants ≥ 1.15 carries.
+pub mod codata2022 {
     /// Planck constant h, J s (exact since 2019).
     pub const PLANCK: f64 = 6.626_070_15e-34;
     /// Reduced Planck constant ħ = h/2π, J s (exact).
     pub const HBAR: f64 = PLANCK / (2.0 * std::f64::consts::PI);
     /// Electron mass, kg.
-    pub const ELECTRON_MASS: f64 = 9.109_383_701_5e-31;
+    pub const ELECTRON_MASS: f64 = 9.109_383_713_9e-31;
     /// Elementary charge, C (exact).
     pub const ELEMENTARY_CHARGE: f64 = 1.602_176_634e-19;
     /// Hartree energy, J.
-    pub const HARTREE: f64 = 4.359_744_722_207_1e-18;
+    pub const HARTREE: f64 = 4.359_744_722_206e-18;
     /// Bohr radius, m.
-    pub const BOHR_RADIUS: f64 = 5.291_772_109_03e-11;
+    pub const BOHR_RADIUS: f64 = 5.291_772_105_44e-11;
 }
 
 /// A unit system. Parsed from a string only at the Python edge.
@@ -60,7 +61,7 @@ impl Units {
 
     /// ħ²/(2 m_e) in energy·length² of this system.
     pub fn hbar2_over_2me(self) -> f64 {
-        use codata2018::*;
+        use codata2022::*;
         match self {
             Units::Natural | Units::Atomic => 0.5,
             Units::Semiconductor => {
@@ -72,7 +73,7 @@ impl Units {
 
     /// ħ in energy·time of this system.
     pub fn hbar(self) -> f64 {
-        use codata2018::*;
+        use codata2022::*;
         match self {
             Units::Natural | Units::Atomic => 1.0,
             // J s -> meV fs
@@ -84,8 +85,8 @@ impl Units {
     pub fn energy_unit_joule(self) -> Option<f64> {
         match self {
             Units::Natural => None,
-            Units::Atomic => Some(codata2018::HARTREE),
-            Units::Semiconductor => Some(codata2018::ELEMENTARY_CHARGE * 1e-3),
+            Units::Atomic => Some(codata2022::HARTREE),
+            Units::Semiconductor => Some(codata2022::ELEMENTARY_CHARGE * 1e-3),
         }
     }
 
@@ -93,7 +94,7 @@ impl Units {
     pub fn length_unit_metre(self) -> Option<f64> {
         match self {
             Units::Natural => None,
-            Units::Atomic => Some(codata2018::BOHR_RADIUS),
+            Units::Atomic => Some(codata2022::BOHR_RADIUS),
             Units::Semiconductor => Some(1e-9),
         }
     }
@@ -119,7 +120,7 @@ mod tests {
 
     #[test]
     fn semiconductor_constants_match_recalled_values() {
-        // Recalled from memory (CODATA 2018 derived): ħ²/2m_e = 38.0998 meV nm², ħ = 658.2120 meV fs.
+        // Recalled from memory (CODATA 2018 derived; CODATA 2022 moves them by ~1e-9): ħ²/2m_e = 38.0998 meV nm², ħ = 658.2120 meV fs.
         assert!((Units::Semiconductor.hbar2_over_2me() - 38.0998).abs() < 1e-3);
         assert!((Units::Semiconductor.hbar() - 658.2120).abs() < 1e-3);
     }

@@ -372,12 +372,12 @@ mod tests {
         }
     }
 
-    /// ħ²/(2m_e) in meV·nm² from CODATA 2018 (h = 6.62607015e-34 J s and e =
-    /// 1.602176634e-19 C exact since the 2019 SI, m_e = 9.1093837015e-31 kg; values
-    /// recalled from memory, same as src/units.rs): 38.0998… meV nm².
+    /// ħ²/(2m_e) in meV·nm² from CODATA 2022 (h = 6.62607015e-34 J s and e =
+    /// 1.602176634e-19 C exact since the 2019 SI, m_e = 9.1093837139e-31 kg, Mohr et al.
+    /// 2025): 38.0998… meV nm².
     fn hbar2_over_2me_mev_nm2() -> f64 {
         let hbar = 6.626_070_15e-34 / (2.0 * PI);
-        let me = 9.109_383_701_5e-31;
+        let me = 9.109_383_713_9e-31;
         let mev = 1.602_176_634e-22;
         hbar * hbar / (2.0 * me) / mev * 1e18
     }

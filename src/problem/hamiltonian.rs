@@ -7,7 +7,7 @@ use super::fourier::FourierProblem;
 use super::hermite::HermiteProblem;
 use super::layered::LayeredProblem;
 use super::DiscreteProblem;
-use crate::basis::{Basis, BasisRef, FourierGrid, LayeredBasis};
+use crate::basis::{Basis, BasisRef, ElementBasis, FourierGrid, LayeredBasis};
 use crate::error::{check_finite, check_positive, InputError, Result};
 use crate::model::stack::Heterostructure;
 use crate::model::units::Units;
@@ -62,6 +62,8 @@ pub struct Hamiltonian {
     kinetic: Kinetic,
     units: Units,
     problem: Arc<dyn DiscreteProblem>,
+    /// The layered structure the potential and mass come from, if any.
+    stack: Option<Arc<Heterostructure>>,
 }
 
 impl std::fmt::Debug for Hamiltonian {
@@ -157,7 +159,7 @@ impl Hamiltonian {
             }
             _ => return Err(InputError::range("basis", "a HermiteBasis or FourierGrid (use Hamiltonian::layered for heterostructures)", b.describe()).into()),
         };
-        Ok(Hamiltonian { basis, potential, mass, kinetic, units, problem })
+        Ok(Hamiltonian { basis, potential, mass, kinetic, units, problem, stack: None })
     }
 
     /// The BenDaniel-Duke Hamiltonian of a heterostructure on the box and size of `grid`
@@ -170,7 +172,27 @@ impl Hamiltonian {
         let potential = stack.potential(&nodes);
         let masses = stack.mass(&nodes);
         let kinetic = Kinetic::Profile(masses.iter().map(|&m| units.kinetic_prefactor(m)).collect());
-        Ok(Hamiltonian { basis: BasisRef::Layered(basis), potential, mass: Mass::Profile(masses), kinetic, units, problem: Arc::new(problem) })
+        let stack = Some(Arc::new(stack.clone()));
+        Ok(Hamiltonian { basis: BasisRef::Layered(basis), potential, mass: Mass::Profile(masses), kinetic, units, problem: Arc::new(problem), stack })
+    }
+
+    /// The BenDaniel-Duke Hamiltonian of a heterostructure on an element basis: band
+    /// edge (with the field) and mass sampled at the basis points, whose element ends
+    /// are nudged inward, so each element sees its own layer (put a breakpoint on every
+    /// interface). Requires `units` = Semiconductor.
+    pub fn stack_on_elements(stack: &Heterostructure, basis: Arc<ElementBasis>, units: Units) -> Result<Self> {
+        if units != Units::Semiconductor {
+            return Err(InputError::range("units", "\"semiconductor\" (layers are given in nm, meV, m_e and the field in kV/cm)", format!("{:?}", units.name())).into());
+        }
+        let points = basis.points().to_vec();
+        let mut h = Hamiltonian::new(BasisRef::Elements(basis), stack.potential(&points), Mass::Profile(stack.mass(&points)), units)?;
+        h.stack = Some(Arc::new(stack.clone()));
+        Ok(h)
+    }
+
+    /// The layered structure behind the Hamiltonian, if it was built from one.
+    pub fn stack(&self) -> Option<&Arc<Heterostructure>> {
+        self.stack.as_ref()
     }
 
     /// The operators of the discretised problem.

@@ -170,13 +170,10 @@ impl PyHamiltonian {
     fn mass(&self, py: Python<'_>) -> Py<PyAny> {
         mass_to_py(py, self.inner.mass())
     }
-    /// The Heterostructure of a layered Hamiltonian (None for the other bases).
+    /// The Heterostructure the Hamiltonian was built from (None otherwise).
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
-        match self.inner.basis() {
-            BasisRef::Layered(l) => Ok(Some(stack_to_py(py, l)?)),
-            _ => Ok(None),
-        }
+        self.inner.stack().map(|s| Py::new(py, PyHeterostructure { inner: s.clone() })).transpose()
     }
     #[getter]
     fn size(&self) -> usize {
@@ -209,8 +206,8 @@ impl PyHamiltonian {
     fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyType>, (Py<PyAny>, Py<PyAny>, Py<PyAny>, &'static str))> {
         let py = slf.py();
         let h = &slf.get().inner;
-        if let BasisRef::Layered(l) = h.basis() {
-            let stack = stack_to_py(py, l)?.into_any();
+        if let Some(s) = h.stack() {
+            let stack = Py::new(py, PyHeterostructure { inner: s.clone() })?.into_any();
             return Ok((slf.get_type(), (basis_to_py(py, h.basis())?, stack, py.None(), h.units().name())));
         }
         Ok((
@@ -218,11 +215,6 @@ impl PyHamiltonian {
             (basis_to_py(py, h.basis())?, PyArray1::from_slice(py, h.potential()).into_any().unbind(), mass_to_py(py, h.mass()), h.units().name()),
         ))
     }
-}
-
-/// The Heterostructure behind a layered basis, as a Python object.
-fn stack_to_py(py: Python<'_>, l: &crate::basis::LayeredBasis) -> PyResult<Py<PyHeterostructure>> {
-    Py::new(py, PyHeterostructure { inner: Arc::new(l.stack().clone()) })
 }
 
 fn mass_text(m: &Mass) -> String {
@@ -271,17 +263,23 @@ fn layered_hamiltonian(
     mass: Option<&Bound<'_, PyAny>>,
     units: Units,
 ) -> PyResult<PyHamiltonian> {
-    let grid = match basis {
-        BasisRef::Fourier(g) => g.clone(),
-        _ => return Err(PyTypeError::new_err("`basis` must be a specwell.FourierGrid for a Heterostructure potential")),
-    };
     if mass.is_some() {
         return Err(pyo3::exceptions::PyValueError::new_err(
             "`mass` must be omitted for a Heterostructure potential (each layer carries its own mass)",
         ));
     }
     let stack = stack.clone();
-    let h = py.detach(move || Hamiltonian::layered(&stack, &grid, units)).py(py)?;
+    let h = match basis {
+        BasisRef::Fourier(g) => {
+            let g = g.clone();
+            py.detach(move || Hamiltonian::layered(&stack, &g, units)).py(py)?
+        }
+        BasisRef::Elements(e) => {
+            let e = e.clone();
+            py.detach(move || Hamiltonian::stack_on_elements(&stack, e, units)).py(py)?
+        }
+        _ => return Err(PyTypeError::new_err("`basis` must be a specwell.ElementBasis or FourierGrid for a Heterostructure potential")),
+    };
     Ok(PyHamiltonian { inner: Arc::new(h) })
 }
 
@@ -338,13 +336,23 @@ impl PySpectrum {
     fn count(&self) -> usize {
         self.inner.count()
     }
-    /// The Heterostructure of a layered spectrum (None for the other bases).
+    /// The Heterostructure of the spectrum's Hamiltonian (None when it has none).
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
-        match &self.inner.basis() {
-            BasisRef::Layered(l) => Ok(Some(stack_to_py(py, l)?)),
-            _ => Ok(None),
-        }
+        self.inner.hamiltonian.stack().map(|s| Py::new(py, PyHeterostructure { inner: s.clone() })).transpose()
+    }
+    /// Per-level error estimates (energy units) of a self-converged solve
+    /// (`Heterostructure.solve`): |E(p+2) − E(p)|; None for other solves.
+    #[getter]
+    fn errors<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        self.inner.errors.as_ref().map(|e| PyArray1::from_slice(py, e))
+    }
+    /// Per level, for a layered structure: True when the level lies below both cladding
+    /// band edges (in a field, below the lower of the two), i.e. is bound; False for
+    /// continuum (box) states. None without a structure.
+    #[getter]
+    fn bound<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<bool>>> {
+        self.inner.bound.as_ref().map(|b| PyArray1::from_slice(py, b))
     }
     /// The Hamiltonian whose eigenpairs these are.
     #[getter]

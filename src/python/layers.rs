@@ -1,6 +1,8 @@
 //! Python classes Layer and Heterostructure.
 
-use super::arrays::vec_f64;
+use super::arrays::{to_usize, vec_f64};
+use crate::eigen::stack::{solve_stack, StackOptions};
+use crate::model::units::Units;
 use super::display::table;
 use super::errors::IntoPyResult;
 use crate::model::stack::{Heterostructure, Layer};
@@ -139,6 +141,29 @@ impl PyHeterostructure {
         let z = vec_f64(z, "z", None)?;
         crate::error::check_finite("z", &z).py(py)?;
         Ok(PyArray1::from_vec(py, self.inner.mass(&z)))
+    }
+    /// Levels on Legendre spectral elements, self-converged to `accuracy` (see `_core.pyi`).
+    #[pyo3(signature = (count=None, accuracy=1e-10, *, order=None, element_length=12.0))]
+    fn solve(
+        &self,
+        py: Python<'_>,
+        count: Option<&Bound<'_, PyAny>>,
+        accuracy: f64,
+        order: Option<&Bound<'_, PyAny>>,
+        element_length: f64,
+    ) -> PyResult<super::hamiltonian::PySpectrum> {
+        let mut o = StackOptions::new(count.map(|c| to_usize(c, "count", 1, 100_000)).transpose()?, accuracy);
+        o.order = order.map(|p| to_usize(p, "order", 2, crate::basis::gll::MAX_ORDER - 2)).transpose()?;
+        o.element_length = element_length;
+        let stack = self.inner.clone();
+        let s = py.detach(move || solve_stack(&stack, &o, Units::Semiconductor)).py(py)?;
+        super::errors::warn_accuracy(py, &s)?;
+        Ok(super::hamiltonian::PySpectrum { inner: Arc::new(s) })
+    }
+    /// Band edges of the left and right claddings (meV), field term included.
+    #[getter]
+    fn cladding_edges(&self) -> (f64, f64) {
+        self.inner.cladding_edges()
     }
     fn __len__(&self) -> usize {
         self.inner.layers().len()
