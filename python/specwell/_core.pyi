@@ -6,7 +6,7 @@ import numpy as np
 import numpy.typing as npt
 
 __all__ = [
-    "AccuracyWarning", "Batch", "ConvergenceError", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
+    "AccuracyWarning", "Batch", "ConvergenceError", "ElementBasis", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
     "METHODS", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
     "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
 ]
@@ -83,6 +83,52 @@ class HermiteBasis:
     @property
     def nodes(self) -> npt.NDArray[np.float64]:
         """Dimensionless Gauss-Hermite nodes ξ_k (weight e^{−ξ²})."""
+    def __len__(self) -> int: ...
+
+@final
+class ElementBasis:
+    """Legendre spectral elements: Lagrange polynomials of order ``order`` on the
+    Gauss-Lobatto-Legendre nodes of every element, continuous across elements, ψ = 0 at
+    both ends.
+
+    Elements have their edges on the given breakpoints (each interval one element, or
+    split evenly into pieces no longer than ``max_element_length``). Put a breakpoint on
+    every jump of the potential or the mass and on every kink of the potential: the
+    levels then converge spectrally (exponentially in the order). The BenDaniel-Duke
+    condition (ψ'/m continuous) is natural in the weak form. Potentials and masses are
+    sampled on ``x``, the GLL nodes of every element with each element's two ends moved
+    one ulp inward, so a callable with a jump at a breakpoint is evaluated on the side
+    the element uses. Coefficient vectors are the nodal values ψ(nodes[1:-1]).
+
+    Parameters
+    ----------
+    breakpoints : array_like
+        Strictly increasing, finite, at least two (length units).
+    order : int
+        Polynomial order p of every element, 2 ≤ p ≤ 64 (default 16).
+    max_element_length : float, optional
+        Split intervals longer than this into equal elements.
+    """
+
+    def __new__(cls, breakpoints: npt.ArrayLike, order: int = 16, max_element_length: Optional[float] = None) -> ElementBasis: ...
+    @property
+    def order(self) -> int:
+        """Polynomial order p of every element."""
+    @property
+    def size(self) -> int:
+        """Number of unknowns, n_elements·p − 1."""
+    @property
+    def edges(self) -> npt.NDArray[np.float64]:
+        """Element edges after splitting (length n_elements + 1)."""
+    @property
+    def breakpoints(self) -> npt.NDArray[np.float64]:
+        """The breakpoints given."""
+    @property
+    def x(self) -> npt.NDArray[np.float64]:
+        """Sample points of potentials and masses, length n_elements·(p+1) (element ends nudged inward)."""
+    @property
+    def nodes(self) -> npt.NDArray[np.float64]:
+        """Global nodes including both ends (length n_elements·p + 1)."""
     def __len__(self) -> int: ...
 
 @final
@@ -268,6 +314,13 @@ class Spectrum:
     @property
     def note(self) -> Optional[str]:
         """How the result was produced when the automatic choice changed course, else None."""
+    @property
+    def errors(self) -> Optional[npt.NDArray[np.float64]]:
+        """Per-level error estimates |E(p+2) − E(p)| (energy units) of ``Heterostructure.solve``, else None."""
+    @property
+    def bound(self) -> Optional[npt.NDArray[np.bool_]]:
+        """For a layered structure: True where the level lies below both cladding band edges
+        (in a field, below the lower of the two), False for continuum (box) states; else None."""
     def wavefunctions(self, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
         """ψ_n(x) for every state, shape (count, len(x)), normalised ∫|ψ|² dx = 1.
 
@@ -367,10 +420,11 @@ class Heterostructure:
     Parameters
     ----------
     layers : sequence of Layer
-        From left to right; the outer layers continue beyond the stack as barrier padding.
+        From left to right; the outer layers continue beyond the stack as flat semi-infinite
+        claddings.
     field_kv_cm : float
         Field (kV/cm) applied across the stack only: V(z) = band edge + 0.1·F·(clamp(z, 0, L) − L/2) meV,
-        constant outside the stack (no sawtooth in the periodic box).
+        constant in the claddings.
     """
 
     def __new__(cls, layers: Sequence[Layer], field_kv_cm: float = 0.0) -> Heterostructure: ...
@@ -390,6 +444,37 @@ class Heterostructure:
         """V(z) (meV): band edge plus field term, at points z (nm)."""
     def mass(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
         """m(z) (m_e) at points z (nm)."""
+    @property
+    def cladding_edges(self) -> Tuple[float, float]:
+        """Band edges (meV) of the left and right claddings, field term included: a level below both is bound."""
+    def solve(self, count: Optional[int] = None, accuracy: float = 1e-10, *, order: Optional[int] = None,
+              element_length: float = 15.0) -> Spectrum:
+        """Levels on Legendre spectral elements, self-converged to ``accuracy``.
+
+        The mesh has an element edge on every interface; the claddings are covered by
+        elements that grow outwards to where the wanted levels have decayed. Levels are
+        computed at orders p and p + 2 on one mesh until |E(p+2) − E(p)| ≤
+        accuracy·max(|E|, E − V_min) for every requested level (V_min the lowest band edge);
+        the p + 2 levels are returned with those differences as ``errors``. Model: single-band
+        BenDaniel-Duke, parabolic bands; material parameters are the user's.
+
+        Parameters
+        ----------
+        count : int, optional
+            Number of levels; None: all bound levels (below both cladding edges).
+        accuracy : float
+            Relative accuracy in [1e-13, 1e-2].
+        order : int, optional
+            Starting element order (default from the accuracy).
+        element_length : float
+            Longest element inside a layer (nm); shortened for the wavenumbers of the levels.
+
+        Returns
+        -------
+        Spectrum
+            On an ``ElementBasis``; ``errors`` and ``bound`` are set, wavefunctions evaluate
+            anywhere (0 beyond the cladding depth, where the tails are below the accuracy).
+        """
     def __len__(self) -> int: ...
 
 @final
@@ -551,23 +636,31 @@ class Batch:
         """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
     def __len__(self) -> int: ...
 
-def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.ArrayLike, Sequence[_PotentialLike]],
+def solve_batch(basis: Union[HermiteBasis, FourierGrid, ElementBasis, None],
+                potentials: Union[npt.ArrayLike, Sequence[_PotentialLike], Sequence[Heterostructure]],
                 count: int, mass: Union[float, _PotentialLike, None] = None, units: str = "natural",
-                method: str = "auto", tol: float = 1e-10) -> Batch:
-    """Lowest ``count`` states of many potentials on one basis, in parallel (rayon, GIL released).
+                method: str = "auto", tol: float = 1e-10, accuracy: float = 1e-10) -> Batch:
+    """Lowest ``count`` states of many potentials on one basis, or of many heterostructures,
+    in parallel (rayon, GIL released).
 
     Parameters
     ----------
-    basis : HermiteBasis or FourierGrid
-        Shared basis.
-    potentials : array_like (M, N) or sequence of callables/arrays
-        Potentials sampled on ``basis.x`` (or callables evaluated there).
+    basis : HermiteBasis, FourierGrid, ElementBasis or None
+        Shared basis; None for a sweep of Heterostructures, each solved as by
+        ``Heterostructure.solve(count, accuracy)`` on its own element mesh (each thread
+        starts an item from the previous item's mesh).
+    potentials : array_like (M, N), sequence of callables/arrays, or sequence of Heterostructure
+        Potentials sampled on ``basis.x`` (or callables evaluated there); Heterostructures
+        when ``basis`` is None.
     count : int
         States per item.
     mass, units, method, tol
-        As for ``Hamiltonian`` and ``Hamiltonian.solve``. With ``method="iterative"`` each thread
-        walks a contiguous chunk of the sweep and warm-starts every item from the linear
+        As for ``Hamiltonian`` and ``Hamiltonian.solve``. With ``method="iterative"`` (the
+        automatic choice above 56 functions with a fast product) each thread walks a
+        contiguous chunk of the sweep and warm-starts every item from the linear
         extrapolation of the two previous items' eigenvectors.
+    accuracy : float
+        Relative accuracy of every level of a sweep of Heterostructures.
 
     Returns
     -------
@@ -577,7 +670,8 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid], potentials: Union[npt.A
 def _layer_from_parts(thickness: float, band_edge: float, mass: float, doping: float,
                       permittivity: Optional[float], nonparabolicity: float) -> Layer: ...
 def _spectrum_from_parts(hamiltonian: Hamiltonian, energies: npt.ArrayLike, vectors: npt.ArrayLike,
-                         residuals: npt.ArrayLike, method: str, iterations: int) -> Spectrum: ...
+                         residuals: npt.ArrayLike, method: str, iterations: int,
+                         errors: Optional[npt.ArrayLike]) -> Spectrum: ...
 def _split_step_from_parts(grid: FourierGrid, potential: _PotentialLike, mass: float, dt: float, order: int, units: str,
                            drive: object, drive_potential: object, absorber_width: Optional[float],
                            absorber_potential: object, imaginary_time: bool) -> SplitStep: ...

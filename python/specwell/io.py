@@ -23,7 +23,9 @@ def _basis_header(basis) -> dict:
                 "length": basis.length, "quadrature": basis.quadrature}
     if isinstance(basis, _core.FourierGrid):
         return {"kind": "FourierGrid", "start": basis.start, "stop": basis.stop, "points": basis.points}
-    raise TypeError(f"`basis` must be a HermiteBasis or FourierGrid; got {type(basis).__name__}")
+    if isinstance(basis, _core.ElementBasis):
+        return {"kind": "ElementBasis", "edges": [float(e) for e in basis.edges], "order": basis.order}
+    raise TypeError(f"`basis` must be a HermiteBasis, FourierGrid or ElementBasis; got {type(basis).__name__}")
 
 
 def _basis_from_header(h: dict):
@@ -31,6 +33,8 @@ def _basis_from_header(h: dict):
         return _core.HermiteBasis(h["size"], h["center"], h["length"], h["quadrature"])
     if h["kind"] == "FourierGrid":
         return _core.FourierGrid(h["start"], h["stop"], h["points"])
+    if h["kind"] == "ElementBasis":
+        return _core.ElementBasis(h["edges"], h["order"])
     raise ValueError(f"unknown basis kind {h['kind']!r} in file")
 
 
@@ -88,10 +92,17 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         arrays = dict(energies=result.energies, vectors=result.vectors, residuals=result.residuals,
                       x=result.x)
         _hamiltonian_parts(result.hamiltonian, header, arrays)
+        if result.errors is not None:
+            arrays["errors"] = result.errors
     elif isinstance(result, _core.Batch):
         header = {"format": _FORMAT, "version": _VERSION, "type": "Batch", "items": []}
-        arrays = {"energies": result.energies, "residuals": result.residuals,
-                  "vectors": np.stack([s.vectors for s in result])}
+        arrays = {"energies": result.energies, "residuals": result.residuals}
+        shapes = {s.vectors.shape for s in result}
+        if len(shapes) == 1:
+            arrays["vectors"] = np.stack([s.vectors for s in result])
+        else:  # items on meshes of their own (sweeps of heterostructures)
+            header["vectors_per_item"] = True
+            arrays.update({f"vectors_{i}": s.vectors for i, s in enumerate(result)})
         per_item = []
         for s in result:
             h, a = {"method": s.method, "iterations": s.iterations}, {}
@@ -100,6 +111,8 @@ def save(result, path: Union[str, os.PathLike]) -> None:
             per_item.append(a)
         for key in per_item[0]:
             arrays[key] = np.stack([a[key] for a in per_item])
+        if all(s.errors is not None for s in result):
+            arrays["errors"] = np.stack([s.errors for s in result])
     elif isinstance(result, _core.Run):
         header = {"format": _FORMAT, "version": _VERSION, "type": "Run", "units": result.units,
                   "basis": _basis_header(result.grid), "absorbed_norm": result.absorbed_norm,
@@ -126,7 +139,8 @@ def load(path: Union[str, os.PathLike]):
         kind = header["type"]
         if kind == "Spectrum":
             return _core._spectrum_from_parts(_hamiltonian_from_parts(header, f), f["energies"], f["vectors"],
-                                              f["residuals"], header["method"], header["iterations"])
+                                              f["residuals"], header["method"], header["iterations"],
+                                              f["errors"] if "errors" in f.files else None)
         loaders = _LOADERS.get(kind)
         if loaders is None:
             raise ValueError(f"unknown result type {kind!r} in file")
@@ -146,8 +160,10 @@ def _load_batch(header: dict, f: dict):
     for i, h in enumerate(header["items"]):
         parts = {k: v[i] for k, v in f.items() if k in ("potential", "mass")}
         ham = _hamiltonian_from_parts(h, parts)
-        spectra.append(_core._spectrum_from_parts(ham, f["energies"][i], f["vectors"][i], f["residuals"][i],
-                                                  h["method"], h["iterations"]))
+        vectors = f[f"vectors_{i}"] if header.get("vectors_per_item") else f["vectors"][i]
+        errors = f["errors"][i] if "errors" in f else None
+        spectra.append(_core._spectrum_from_parts(ham, f["energies"][i], vectors, f["residuals"][i],
+                                                  h["method"], h["iterations"], errors))
     return _core._batch_from_spectra(spectra)
 
 

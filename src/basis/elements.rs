@@ -166,12 +166,16 @@ impl ElementBasis {
     /// A mesh for a layered structure: element edges on every interface (`interfaces`
     /// z_0 < … < z_n, the stack), layers split into pieces no longer than `max_length`,
     /// and claddings of depth `depth.0` to the left of z_0 and `depth.1` to the right of
-    /// z_n covered by elements that double in length outwards from
-    /// h₀ = min(max_length/2, the adjacent layer's thickness), the last one stretched or
-    /// shrunk to end exactly at the depth. Graded claddings resolve every decay length
-    /// from h₀ outwards with a few elements (exponential tails need no more).
-    pub fn layered(interfaces: &[f64], order: usize, max_length: f64, depth: (f64, f64)) -> Result<Self, InputError> {
+    /// z_n covered by elements that double in length outwards from `first.0` (left) and
+    /// `first.1` (right) (each at most max_length/2), the last one merged so that the mesh
+    /// ends exactly at the depth. Graded claddings resolve every decay length from the
+    /// first element outwards with a few elements (exponential tails need no more); a
+    /// first element of about 1.5 decay lengths of the most strongly bound state is a
+    /// good choice.
+    pub fn layered(interfaces: &[f64], order: usize, max_length: f64, depth: (f64, f64), first: (f64, f64)) -> Result<Self, InputError> {
         crate::error::check_positive("max_length", max_length)?;
+        crate::error::check_positive("first cladding element", first.0)?;
+        crate::error::check_positive("first cladding element", first.1)?;
         crate::error::check_positive("cladding depth", depth.0)?;
         crate::error::check_positive("cladding depth", depth.1)?;
         let n = interfaces.len();
@@ -194,10 +198,8 @@ impl ElementBasis {
             d.push(depth);
             d
         };
-        let first = interfaces[1] - interfaces[0];
-        let last = interfaces[n - 1] - interfaces[n - 2];
-        let left = grade((0.5 * max_length).min(first), depth.0);
-        let right = grade((0.5 * max_length).min(last), depth.1);
+        let left = grade((0.5 * max_length).min(first.0), depth.0);
+        let right = grade((0.5 * max_length).min(first.1), depth.1);
         let mut edges: Vec<f64> = left.iter().rev().map(|d| interfaces[0] - d).collect();
         edges.pop(); // z_0 itself comes with the layers
         for w in interfaces.windows(2) {

@@ -159,6 +159,7 @@ impl Spectrum {
         residuals: Vec<f64>,
         method: Method,
         iterations: usize,
+        errors: Option<Vec<f64>>,
     ) -> std::result::Result<Self, InputError> {
         let n = hamiltonian.size();
         let k = energies.len();
@@ -175,8 +176,17 @@ impl Spectrum {
         crate::error::check_finite("energies", &energies)?;
         crate::error::check_finite("residuals", &residuals)?;
         crate::error::check_finite("vectors", &column_major(&vectors))?;
+        if let Some(e) = &errors {
+            if e.len() != k {
+                return Err(InputError::Length { argument: "errors".into(), expected: k, got: e.len() });
+            }
+        }
         let attainable = attainable_accuracy(hamiltonian.problem(), &energies);
-        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None, errors: None, bound: None })
+        let bound = hamiltonian.stack().map(|s| {
+            let (l, r) = s.cladding_edges();
+            energies.iter().map(|&e| e < l.min(r)).collect()
+        });
+        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None, errors, bound })
     }
 
     pub fn count(&self) -> usize {

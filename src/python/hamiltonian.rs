@@ -245,13 +245,15 @@ pub fn _spectrum_from_parts(
     residuals: &Bound<'_, PyAny>,
     method: &str,
     iterations: usize,
+    errors: Option<&Bound<'_, PyAny>>,
 ) -> PyResult<PySpectrum> {
     let energies = vec_f64(energies, "energies", None)?;
     let residuals = vec_f64(residuals, "residuals", None)?;
     let (count, n, data) = super::arrays::mat_f64(vectors, "vectors")?;
     let method = Method::parse(method).py(py)?;
     let v = crate::linalg::from_column_major(&data, n, count);
-    let s = Spectrum::from_parts(hamiltonian.get().inner.clone(), energies, v, residuals, method, iterations).py(py)?;
+    let errors = errors.map(|e| vec_f64(e, "errors", None)).transpose()?;
+    let s = Spectrum::from_parts(hamiltonian.get().inner.clone(), energies, v, residuals, method, iterations, errors).py(py)?;
     Ok(PySpectrum { inner: Arc::new(s) })
 }
 
@@ -467,6 +469,10 @@ impl PySpectrum {
                 PyArray1::from_slice(py, &s.residuals).into_any().unbind(),
                 s.method.name().into_pyobject(py)?.into_any().unbind(),
                 s.iterations.into_pyobject(py)?.into_any().unbind(),
+                match &s.errors {
+                    Some(e) => PyArray1::from_slice(py, e).into_any().unbind(),
+                    None => py.None(),
+                },
             ],
         )?;
         Ok((rebuild, args))
@@ -588,19 +594,23 @@ pub fn _batch_from_spectra(spectra: Vec<PyRef<'_, PySpectrum>>) -> PyBatch {
 
 /// Solve many potentials on one basis in parallel (rayon, GIL released).
 #[pyfunction]
-#[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10))]
+#[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10, accuracy=1e-10))]
 pub fn solve_batch(
     py: Python<'_>,
-    basis: &Bound<'_, PyAny>,
+    basis: Option<&Bound<'_, PyAny>>,
     potentials: &Bound<'_, PyAny>,
     count: &Bound<'_, PyAny>,
     mass: Option<&Bound<'_, PyAny>>,
     units: &str,
     method: &str,
     tol: f64,
+    accuracy: f64,
 ) -> PyResult<PyBatch> {
     let units = Units::parse(units).py(py)?;
     let method = Method::parse(method).py(py)?;
+    let Some(basis) = basis else {
+        return stack_batch(py, potentials, count, mass, accuracy);
+    };
     let b = extract_basis(basis, "basis")?;
     let n_points = b.as_dyn().points().len();
     // An (M, N) ndarray, or a sequence of callables / arrays on basis.x (decided by type).
@@ -640,5 +650,25 @@ pub fn solve_batch(
     if let Some(s) = spectra.iter().find(|s| s.accuracy_warning().is_some()) {
         super::errors::warn_accuracy(py, s)?;
     }
+    Ok(PyBatch { items: spectra.into_iter().map(Arc::new).collect() })
+}
+
+/// `solve_batch(None, stacks, count)`: each Heterostructure on its own self-converged
+/// element mesh (see `Heterostructure.solve`).
+fn stack_batch(py: Python<'_>, stacks: &Bound<'_, PyAny>, count: &Bound<'_, PyAny>, mass: Option<&Bound<'_, PyAny>>, accuracy: f64) -> PyResult<PyBatch> {
+    if mass.is_some() {
+        return Err(pyo3::exceptions::PyValueError::new_err("`mass` must be omitted for a sweep of Heterostructures (each layer carries its own mass)"));
+    }
+    let items = stacks.try_iter().map_err(|_| PyTypeError::new_err("`potentials` must be a sequence of specwell.Heterostructure when `basis` is None"))?;
+    let mut list = Vec::new();
+    for (i, item) in items.enumerate() {
+        let item = item?;
+        let s = item.cast::<PyHeterostructure>().map_err(|_| {
+            PyTypeError::new_err(format!("`potentials[{i}]` must be a specwell.Heterostructure when `basis` is None; got {}", item.get_type().name().map(|n| n.to_string()).unwrap_or_default()))
+        })?;
+        list.push((*s.get().inner).clone());
+    }
+    let opts = crate::eigen::stack::StackOptions::new(Some(to_usize(count, "count", 1, 100_000)?), accuracy);
+    let spectra = py.detach(move || crate::eigen::stack::solve_stack_batch(&list, &opts, Units::Semiconductor)).py(py)?;
     Ok(PyBatch { items: spectra.into_iter().map(Arc::new).collect() })
 }

@@ -143,7 +143,7 @@ impl PyHeterostructure {
         Ok(PyArray1::from_vec(py, self.inner.mass(&z)))
     }
     /// Levels on Legendre spectral elements, self-converged to `accuracy` (see `_core.pyi`).
-    #[pyo3(signature = (count=None, accuracy=1e-10, *, order=None, element_length=12.0))]
+    #[pyo3(signature = (count=None, accuracy=1e-10, *, order=None, element_length=15.0))]
     fn solve(
         &self,
         py: Python<'_>,
