@@ -6,7 +6,8 @@ from typing import Optional, Sequence
 
 import numpy as np
 
-__all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack"]
+__all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack", "plot_band_diagram",
+           "plot_stark_fan"]
 
 
 def _axes(ax):
@@ -65,12 +66,14 @@ def plot_levels(spectrum, potential, x: Optional[Sequence[float]] = None, *, sca
         line, = ax.plot(x, en + scale * p, lw=1.2)
         ax.axhline(en, color=line.get_color(), lw=0.6, ls="--")
     lo = min(np.min(v), e.min() - scale)
-    hi = e.max() + 1.5 * scale
-    ax.set_ylim(lo - 0.05 * (hi - lo), hi)
+    # Show barrier tops unless the potential runs far above the levels (e.g. a trap's walls).
+    hi = max(e.max() + 1.5 * scale, min(float(np.max(v)), e.max() + 3.0 * (e.max() - lo)))
+    ax.set_ylim(lo - 0.05 * (hi - lo), hi + 0.05 * (hi - lo))
     if units is None:
         units = {"semiconductor": "nm, meV", "atomic": "bohr, hartree"}.get(spectrum.units, "")
     lu, eu = (units.split(", ") + ["", ""])[:2] if units else ("", "")
-    ax.set_xlabel(f"x ({lu})" if lu else "x")
+    coord = "z" if getattr(spectrum, "heterostructure", None) is not None else "x"
+    ax.set_xlabel(f"{coord} ({lu})" if lu else coord)
     ax.set_ylabel(f"energy ({eu})" if eu else "energy")
     return ax
 
@@ -260,4 +263,103 @@ def plot_potential_stack(stack, ax=None, *, z: Optional[Sequence[float]] = None,
         ax.specwell_mass_axis = ax2
     else:
         ax.specwell_mass_axis = None
+    return ax
+
+
+def plot_band_diagram(spectrum, ax=None, *, z: Optional[Sequence[float]] = None, scale: Optional[float] = None,
+                      density: bool = True, unbound: bool = False):
+    """Band diagram of a layered structure: the band edge V(z), each level as a line at its
+    energy and |ψ|² (or ψ) offset on it; barrier tops and the cladding edges stay in view.
+
+    Parameters
+    ----------
+    spectrum : Spectrum
+        Levels of a Heterostructure (``spectrum.heterostructure`` must be set), e.g. from
+        ``Heterostructure.solve``.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    z : array_like, optional
+        Plot points (nm); default: the stack plus 20 % of its thickness on each side.
+    scale : float, optional
+        Height of the largest |ψ|² (meV; default 40 % of the smallest level spacing shown,
+        at least 2 % of the band-edge range).
+    density : bool
+        Draw |ψ|² (default) or ψ.
+    unbound : bool
+        Also draw levels flagged as not bound (box states of the claddings).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        z (nm) horizontal, energy (meV) vertical.
+    """
+    stack = spectrum.heterostructure
+    if stack is None:
+        raise ValueError("`spectrum` must come from a Heterostructure (spectrum.heterostructure is None)")
+    ax = _axes(ax)
+    total = float(stack.total_thickness)
+    if z is None:
+        z = np.linspace(-0.2 * total, 1.2 * total, 1400)
+    z = np.asarray(z, dtype=float)
+    v = np.asarray(stack.potential(z))
+    e = np.asarray(spectrum.energies)
+    keep = np.ones(len(e), bool) if unbound or spectrum.bound is None else np.asarray(spectrum.bound)
+    psi = spectrum.wavefunctions(z)[keep]
+    e = e[keep]
+    if density:
+        psi = psi**2
+    vr = float(np.ptp(v)) or 1.0
+    if scale is None:
+        gaps = np.diff(np.sort(e))
+        gaps = gaps[gaps > 1e-6 * vr]
+        scale = max(0.4 * (gaps.min() if gaps.size else vr), 0.02 * vr)
+    ax.plot(z, v, color="0.15", lw=1.6, label="band edge")
+    amp = np.max(np.abs(psi), axis=1, keepdims=True) if len(e) else np.ones((0, 1))
+    amp[amp == 0] = 1.0
+    for en, p in zip(e, psi / amp):
+        line, = ax.plot(z, en + scale * p, lw=1.1)
+        ax.hlines(en, z[0], z[-1], color=line.get_color(), lw=0.6, ls="--")
+    for edge in stack.cladding_edges:
+        ax.axhline(edge, color="0.6", lw=0.6, ls=":")
+    lo = float(v.min())
+    hi = max(float(v.max()), (e.max() + 1.3 * scale) if len(e) else lo)
+    ax.set_ylim(lo - 0.05 * (hi - lo), hi + 0.08 * (hi - lo))
+    ax.set_xlim(z[0], z[-1])
+    ax.set_xlabel("z (nm)")
+    ax.set_ylabel("energy (meV)")
+    return ax
+
+
+def plot_stark_fan(batch, fields: Sequence[float], ax=None, *, marker_unbound: str = "x"):
+    """Levels against the field of a sweep (``solve_batch(None, stacks, count)``).
+
+    Parameters
+    ----------
+    batch : Batch
+        One item per field, in order.
+    fields : array_like
+        The fields (kV/cm), one per item.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    marker_unbound : str
+        Marker for levels flagged as not bound (above a cladding edge), if any.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    f = np.asarray(fields, dtype=float)
+    e = np.asarray(batch.energies)
+    if f.shape != (e.shape[0],):
+        raise ValueError(f"`fields` must have one value per batch item ({e.shape[0]}); got shape {f.shape}")
+    ax = _axes(ax)
+    for k in range(e.shape[1]):
+        ax.plot(f, e[:, k], lw=1.3, label=f"level {k}")
+        flags = [batch[i].bound for i in range(len(f))]
+        if all(b is not None for b in flags):
+            out = np.array([not b[k] for b in flags])
+            if out.any():
+                ax.plot(f[out], e[out, k], ls="none", marker=marker_unbound, color="0.3")
+    ax.set_xlabel("field (kV/cm)")
+    ax.set_ylabel("energy (meV)")
     return ax
