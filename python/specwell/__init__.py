@@ -9,6 +9,7 @@ Model limits: single-particle, single-band effective-mass Schrödinger equation
 """
 
 from specwell._core import (
+    MATERIALS,
     METHODS,
     AccuracyWarning,
     Batch,
@@ -20,11 +21,13 @@ from specwell._core import (
     HermiteBasis,
     Heterostructure,
     Layer,
+    Material,
     Run,
     Spectrum,
     SplitStep,
     __version__,
     eigh,
+    material,
     solve_batch,
     unit_constants,
 )
@@ -32,6 +35,7 @@ from specwell.io import load, save
 from specwell.states import autocorrelation_spectrum, eigenstate, gaussian_packet, superposition
 
 __all__ = [
+    "MATERIALS",
     "METHODS",
     "AccuracyWarning",
     "Batch",
@@ -43,6 +47,7 @@ __all__ = [
     "HermiteBasis",
     "Heterostructure",
     "Layer",
+    "Material",
     "Run",
     "Spectrum",
     "SplitStep",
@@ -52,6 +57,7 @@ __all__ = [
     "eigh",
     "gaussian_packet",
     "load",
+    "material",
     "save",
     "solve_batch",
     "superposition",

@@ -7,12 +7,13 @@ import numpy.typing as npt
 
 __all__ = [
     "AccuracyWarning", "Batch", "ConvergenceError", "ElementBasis", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
-    "METHODS", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
-    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "solve_batch", "unit_constants",
+    "MATERIALS", "METHODS", "Material", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
+    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "material", "solve_batch", "unit_constants",
 ]
 __version__: str
 UNITS: list[str]
 METHODS: list[str]
+MATERIALS: list[str]
 
 _PotentialLike = Union[Callable[[npt.NDArray[np.float64]], npt.ArrayLike], npt.ArrayLike]
 
@@ -394,6 +395,14 @@ class Layer:
 
     def __new__(cls, thickness: float, band_edge: float, mass: float, *, doping: float = 0.0,
                 permittivity: Optional[float] = None, nonparabolicity: float = 0.0) -> Layer: ...
+    @classmethod
+    def from_material(cls, material: Material, thickness: float, *, reference: Optional[Material] = None,
+                      nonparabolicity: Optional[str] = "three_band", doping: float = 0.0) -> Layer:
+        """A layer of ``material``: band edge = its Γ conduction-band edge minus that of
+        ``reference`` (on the compilation's absolute scale without one), its mass and
+        permittivity, and the non-parabolicity α of the Kane model ``nonparabolicity``
+        ("three_band", "two_band"; None for a parabolic band).
+        """
     @property
     def doping(self) -> float:
         """Net ionized dopant density (cm⁻³)."""
@@ -412,6 +421,66 @@ class Layer:
     @property
     def mass(self) -> float:
         """Effective mass (m_e)."""
+
+@final
+class Material:
+    """Parameters of a III-V material at a composition and temperature (``specwell.material``).
+
+    Band parameters from Vurgaftman, Meyer & Ram-Mohan, J. Appl. Phys. 89, 5815 (2001),
+    alloys with that compilation's bowing parameters; permittivities from a handbook.
+    Every value in the table was recalled from memory (see ``source``): verify the
+    parameters you rely on against the publications before using them for real work.
+    Energies in meV, masses in m_e.
+    """
+
+    @property
+    def name(self) -> str: ...
+    @property
+    def x(self) -> Optional[float]:
+        """Composition of a ternary (AlGaAs: Al fraction; InGaAs, InAlAs: In fraction; GaAsSb, InAsSb, AlAsSb: Sb fraction)."""
+    @property
+    def temperature(self) -> float:
+        """Temperature (K) the gap was evaluated at (Varshni form)."""
+    @property
+    def band_gap(self) -> float:
+        """Γ band gap E_g(T) (meV)."""
+    @property
+    def valence_band(self) -> float:
+        """Valence-band maximum on the compilation's common scale (meV; InSb = 0)."""
+    @property
+    def conduction_band(self) -> float:
+        """Γ conduction-band edge, valence_band + band_gap (meV)."""
+    @property
+    def mass(self) -> float:
+        """Γ electron effective mass (m_e)."""
+    @property
+    def kane_energy(self) -> float:
+        """Kane energy E_P (meV)."""
+    @property
+    def spin_orbit(self) -> float:
+        """Spin-orbit splitting Δ_so (meV)."""
+    @property
+    def permittivity(self) -> float:
+        """Static relative permittivity."""
+    @property
+    def lattice_constant(self) -> float:
+        """Lattice constant at 300 K (Å)."""
+    @property
+    def source(self) -> str:
+        """Where the row's numbers come from."""
+    def nonparabolicity(self, model: str = "three_band") -> float:
+        """Non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)): Kane "three_band" (with Δ_so) or "two_band" (≈ 1/E_g)."""
+
+def material(name: str, x: Optional[float] = None, temperature: float = 300.0) -> Material:
+    """Parameters of material ``name`` (one of ``specwell.MATERIALS``) at composition ``x``
+    (ternaries only, 0 ≤ x ≤ 1) and ``temperature`` (K, 0–800).
+
+    Raises
+    ------
+    ValueError
+        Unknown name (the message lists the choices), x missing or outside [0, 1], x for a
+        binary, temperature out of range.
+    """
 
 @final
 class Heterostructure:

@@ -53,19 +53,64 @@ impl StackOptions {
     }
 }
 
-/// One solve on one mesh.
+/// One solve on one mesh. With non-parabolic layers, level i is the fixed point
+/// E_i = λ_i(H(E_i)) and its vector and residual belong to H(E_i).
 struct Solve {
     h: Arc<Hamiltonian>,
     energies: Vec<f64>,
     vectors: faer::Mat<f64>,
+    /// Residuals of each level in its own H(E_i) (non-parabolic solves only).
+    residuals: Option<Vec<f64>>,
 }
 
 fn solve_on(stack: &Heterostructure, order: usize, opts: &StackOptions, depth: (f64, f64), first: (f64, f64), count: usize, units: Units) -> Result<Solve> {
     let basis = Arc::new(ElementBasis::layered(stack.interfaces(), order, opts.element_length, depth, first)?);
-    let h = Arc::new(Hamiltonian::stack_on_elements(stack, basis, units)?);
+    let h = Arc::new(Hamiltonian::stack_on_elements(stack, basis.clone(), units)?);
     let count = count.min(h.size());
     let (energies, vectors) = dense_lowest(h.problem(), count, faer::Par::Seq)?;
-    Ok(Solve { h, energies, vectors })
+    if !stack.is_nonparabolic() {
+        return Ok(Solve { h, energies, vectors, residuals: None });
+    }
+    nonparabolic(stack, basis, units, h, energies)
+}
+
+/// Energy-dependent masses: each level by the secant iteration on f(E) = λ_i(H(E)) − E
+/// from the parabolic level (|dλ/dE| ≪ 1: a few steps to round-off).
+fn nonparabolic(stack: &Heterostructure, basis: Arc<ElementBasis>, units: Units, h0: Arc<Hamiltonian>, start: Vec<f64>) -> Result<Solve> {
+    let n = h0.size();
+    let count = start.len();
+    let mut energies = Vec::with_capacity(count);
+    let mut vectors = faer::Mat::<f64>::zeros(n, count);
+    let mut res = Vec::with_capacity(count);
+    let level = |i: usize, e: f64| -> Result<(f64, faer::Mat<f64>, Arc<Hamiltonian>)> {
+        let h = Arc::new(Hamiltonian::stack_on_elements_at(stack, basis.clone(), units, Some(e))?);
+        let (vals, v) = dense_lowest(h.problem(), i + 1, faer::Par::Seq)?;
+        Ok((vals[i], v, h))
+    };
+    for (i, &e0) in start.iter().enumerate() {
+        let tol = 1e-14 * e0.abs().max(1.0);
+        let (mut x0, (mut f0, mut v0, mut hh)) = (e0, level(i, e0).map(|(l, v, h)| (l - e0, v, h))?);
+        let mut x1 = x0 + f0;
+        for _ in 0..40 {
+            let (l1, v1, h1) = level(i, x1)?;
+            let f1 = l1 - x1;
+            (v0, hh) = (v1, h1);
+            if f1.abs() <= tol || f1 == f0 {
+                x0 = x1;
+                break;
+            }
+            let x2 = x1 - f1 * (x1 - x0) / (f1 - f0);
+            (x0, f0, x1) = (x1, f1, x2);
+        }
+        energies.push(x0);
+        let col = v0.col(i).to_owned();
+        for r in 0..n {
+            vectors[(r, i)] = col[r];
+        }
+        let m = faer::Mat::from_fn(n, 1, |r, _| col[r]);
+        res.push(residuals(hh.problem(), &[x0], &m)[0]);
+    }
+    Ok(Solve { h: h0, energies, vectors, residuals: Some(res) })
 }
 
 /// Depth (nm) a cladding with band edge `edge` and mass `mass` needs for a level at
@@ -250,7 +295,10 @@ fn finish(s: Solve, errors: Vec<f64>, keep: usize, edges: (f64, f64)) -> Spectru
     let energies = s.energies[..keep].to_vec();
     let mut vectors = s.vectors.as_ref().subcols(0, keep).to_owned();
     fix_signs(s.h.basis().as_dyn(), &mut vectors);
-    let res = residuals(s.h.problem(), &energies, &vectors);
+    let res = match &s.residuals {
+        Some(r) => r[..keep].to_vec(),
+        None => residuals(s.h.problem(), &energies, &vectors),
+    };
     let attainable = super::attainable_accuracy(s.h.problem(), &energies);
     let bound = energies.iter().map(|&e| e < edges.0.min(edges.1)).collect();
     Spectrum {

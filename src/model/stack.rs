@@ -46,6 +46,25 @@ impl Layer {
     pub fn new(thickness: f64, band_edge: f64, mass: f64) -> Self {
         Layer { thickness, band_edge, mass, doping: 0.0, permittivity: None, nonparabolicity: 0.0 }
     }
+
+    /// A layer of `material`: band edge = its Γ conduction-band edge minus that of
+    /// `reference` (or on the compilation's absolute scale without one), its mass and
+    /// permittivity, and the non-parabolicity α of `model` (None: a parabolic band).
+    pub fn from_material(
+        material: &crate::model::materials::Material,
+        thickness: f64,
+        reference: Option<&crate::model::materials::Material>,
+        model: Option<crate::model::materials::Nonparabolicity>,
+    ) -> Self {
+        Layer {
+            thickness,
+            band_edge: material.conduction_band - reference.map_or(0.0, |r| r.conduction_band),
+            mass: material.mass,
+            doping: 0.0,
+            permittivity: Some(material.permittivity),
+            nonparabolicity: model.map_or(0.0, |m| material.nonparabolicity(m)),
+        }
+    }
 }
 
 /// A validated stack of layers on [0, L) with an optional field confined to it.
@@ -171,6 +190,33 @@ impl Heterostructure {
     /// m(z) (m_e) on the points z (nm).
     pub fn mass(&self, z: &[f64]) -> Vec<f64> {
         z.iter().map(|&z| self.mass_at(z)).collect()
+    }
+
+    /// Whether any layer has a non-parabolicity α ≠ 0.
+    pub fn is_nonparabolic(&self) -> bool {
+        self.layers.iter().any(|l| l.nonparabolicity != 0.0)
+    }
+
+    /// The energy-dependent mass m(z; E) = m(1 + α (E − V(z))) (α in 1/eV, E and V in
+    /// meV; Nelson, Miller & Kleinman 1987, two-band Kane form) on the points z, with V the
+    /// band edge including the field. Errors when it is not positive (α too large for E).
+    pub fn mass_at_energy(&self, z: &[f64], energy: f64) -> Result<Vec<f64>, InputError> {
+        z.iter()
+            .map(|&zi| {
+                let i = self.layer_index(zi);
+                let l = &self.layers[i];
+                let m = l.mass * (1.0 + 1e-3 * l.nonparabolicity * (energy - self.potential_at(zi)));
+                if m.is_finite() && m > 0.0 {
+                    Ok(m)
+                } else {
+                    Err(InputError::range(
+                        &format!("layers[{i}].nonparabolicity"),
+                        format!("small enough that m(E) = m(1 + α(E − E_c)) > 0 at E = {energy} meV"),
+                        l.nonparabolicity,
+                    ))
+                }
+            })
+            .collect()
     }
 }
 

@@ -181,11 +181,21 @@ impl Hamiltonian {
     /// are nudged inward, so each element sees its own layer (put a breakpoint on every
     /// interface). Requires `units` = Semiconductor.
     pub fn stack_on_elements(stack: &Heterostructure, basis: Arc<ElementBasis>, units: Units) -> Result<Self> {
+        Self::stack_on_elements_at(stack, basis, units, None)
+    }
+
+    /// [`Hamiltonian::stack_on_elements`] with the layers' energy-dependent masses
+    /// m(E) = m(1 + α(E − E_c)) evaluated at `energy` (meV), or the band-edge masses for `None`.
+    pub fn stack_on_elements_at(stack: &Heterostructure, basis: Arc<ElementBasis>, units: Units, energy: Option<f64>) -> Result<Self> {
         if units != Units::Semiconductor {
             return Err(InputError::range("units", "\"semiconductor\" (layers are given in nm, meV, m_e and the field in kV/cm)", format!("{:?}", units.name())).into());
         }
         let points = basis.points().to_vec();
-        let mut h = Hamiltonian::new(BasisRef::Elements(basis), stack.potential(&points), Mass::Profile(stack.mass(&points)), units)?;
+        let masses = match energy {
+            Some(e) => stack.mass_at_energy(&points, e)?,
+            None => stack.mass(&points),
+        };
+        let mut h = Hamiltonian::new(BasisRef::Elements(basis), stack.potential(&points), Mass::Profile(masses), units)?;
         h.stack = Some(Arc::new(stack.clone()));
         Ok(h)
     }

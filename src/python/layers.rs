@@ -40,6 +40,34 @@ impl PyLayer {
     fn mass(&self) -> f64 {
         self.inner.mass
     }
+    /// A layer of `material` (see `_core.pyi`): band edge relative to `reference`,
+    /// mass, permittivity and non-parabolicity from the table.
+    #[classmethod]
+    #[pyo3(signature = (material, thickness, *, reference=None, nonparabolicity="three_band", doping=0.0))]
+    fn from_material(
+        _cls: &Bound<'_, pyo3::types::PyType>,
+        py: Python<'_>,
+        material: &Bound<'_, PyAny>,
+        thickness: f64,
+        reference: Option<&Bound<'_, PyAny>>,
+        nonparabolicity: Option<&str>,
+        doping: f64,
+    ) -> PyResult<Self> {
+        let as_material = |obj: &Bound<'_, PyAny>, name: &str| -> PyResult<crate::model::materials::Material> {
+            obj.cast::<super::materials::PyMaterial>().map(|m| m.get().inner.clone()).map_err(|_| {
+                PyTypeError::new_err(format!("`{name}` must be a specwell.Material (from specwell.material(...)); got {}", obj.get_type().name().map(|n| n.to_string()).unwrap_or_default()))
+            })
+        };
+        let m = as_material(material, "material")?;
+        let r = reference.map(|r| as_material(r, "reference")).transpose()?;
+        let model = nonparabolicity
+            .map(|s| crate::error::parse_choice("nonparabolicity", s, &crate::model::materials::Nonparabolicity::TABLE))
+            .transpose()
+            .py(py)?;
+        let mut layer = Layer::from_material(&m, thickness, r.as_ref(), model);
+        layer.doping = doping;
+        Ok(PyLayer { inner: layer })
+    }
     /// Net ionized dopant density (cm⁻³): donors > 0, acceptors < 0.
     #[getter]
     fn doping(&self) -> f64 {

@@ -10,6 +10,7 @@ mod display;
 mod errors;
 mod hamiltonian;
 mod layers;
+mod materials;
 mod propagate;
 
 use pyo3::prelude::*;
@@ -25,6 +26,9 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<hamiltonian::PyBatch>()?;
     m.add_function(wrap_pyfunction!(hamiltonian::solve_batch, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_batch_from_spectra, m)?)?;
+    m.add_class::<materials::PyMaterial>()?;
+    m.add_function(wrap_pyfunction!(materials::material, m)?)?;
+    m.add("MATERIALS", materials::names())?;
     m.add_class::<layers::PyLayer>()?;
     m.add_function(wrap_pyfunction!(layers::_layer_from_parts, m)?)?;
     m.add_class::<layers::PyHeterostructure>()?;
