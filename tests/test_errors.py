@@ -189,7 +189,7 @@ def test_mass_array_on_hermite(hermite):
 
 
 def test_mass_array_wrong_length(grid):
-    with pytest.raises(ValueError, match=r"`mass`.*length 16.*15"):
+    with pytest.raises(ValueError, match=r"`mass`.*grid point \(16\).*length 15"):
         sw.Hamiltonian(grid, np.zeros(16), mass=np.ones(15))
 
 
