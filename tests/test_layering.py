@@ -21,6 +21,7 @@ ALLOWED = {
     "eigen": {"model", "basis", "problem", "linalg"},
     "observables": {"eigen", "problem", "basis", "model", "linalg"},
     "propagate": {"model", "basis", "problem", "linalg"},
+    "selfconsistent": {"model", "basis", "problem", "linalg", "eigen"},
 }
 
 

@@ -7,8 +7,8 @@ import numpy.typing as npt
 
 __all__ = [
     "AccuracyWarning", "Batch", "ConvergenceError", "ElementBasis", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
-    "MATERIALS", "METHODS", "Material", "Run", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
-    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "material", "solve_batch", "unit_constants",
+    "MATERIALS", "METHODS", "Material", "Run", "SelfConsistent", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
+    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "material", "self_consistent_batch", "solve_batch", "unit_constants",
 ]
 __version__: str
 UNITS: list[str]
@@ -423,6 +423,41 @@ class Layer:
         """Effective mass (m_e)."""
 
 @final
+class SelfConsistent:
+    """A converged Schrödinger-Poisson solution (``Heterostructure.self_consistent``)."""
+
+    @property
+    def fermi_level(self) -> float:
+        """Fermi level (meV); NaN when undefined (no charge)."""
+    @property
+    def spectrum(self) -> Spectrum:
+        """The bound levels of the converged potential, on the element mesh."""
+    @property
+    def sheet_densities(self) -> npt.NDArray[np.float64]:
+        """Electron sheet density of each level (cm⁻²)."""
+    @property
+    def iterations(self) -> int:
+        """Iterations to self-consistency."""
+    @property
+    def residual(self) -> npt.NDArray[np.float64]:
+        """max |U_out − U_in| (meV) of every iteration."""
+    @property
+    def note(self) -> Optional[str]:
+        """Why the solution is special (the flat band of an undoped structure), else None."""
+    def potential(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
+        """Total band edge E_c + field + electrostatic energy (meV) at z (nm); V_xc excluded."""
+    def density(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
+        """Electron density n(z) = Σ_i N_i |ψ_i(z)|² (cm⁻³) at z (nm)."""
+
+def self_consistent_batch(stacks: Sequence[Heterostructure], temperature: float, *,
+                          fermi_level: Optional[float] = None, surface_barrier: Optional[float] = None,
+                          tol: float = 1e-6, max_iter: int = 100, exchange_correlation: bool = False,
+                          accuracy: float = 1e-10, mixing: float = 0.3) -> list[SelfConsistent]:
+    """``Heterostructure.self_consistent`` for many structures (a doping or gate sweep), in
+    parallel (rayon, GIL released): one contiguous chunk per thread, each item started from
+    the previous item's electrostatic potential."""
+
+@final
 class Material:
     """Parameters of a III-V material at a composition and temperature (``specwell.material``).
 
@@ -513,6 +548,57 @@ class Heterostructure:
         """V(z) (meV): band edge plus field term, at points z (nm)."""
     def mass(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
         """m(z) (m_e) at points z (nm)."""
+    def self_consistent(self, temperature: float, *, fermi_level: Optional[float] = None,
+                        surface_barrier: Optional[float] = None, tol: float = 1e-6, max_iter: int = 100,
+                        exchange_correlation: bool = False, accuracy: float = 1e-10,
+                        mixing: float = 0.3) -> SelfConsistent:
+        """Schrödinger-Poisson solution with the layers' doping and permittivities.
+
+        Donors (acceptors: negative doping) are fully ionised inside the stack; the
+        claddings are undoped. Electrons fill the bound subbands of the total band edge by
+        2D Fermi-Dirac statistics with spin, n_i = (m_i k_B T/πħ²) ln(1 + e^{(E_F − E_i)/k_B T})
+        with m_i = ⟨i|m|i⟩ the in-plane mass; Poisson's equation on the same element mesh
+        (exact for piecewise-constant charge, flux-continuous ε); Anderson mixing of the
+        electrostatic energy to max|U_out − U_in| ≤ ``tol`` meV. Mean field only (plus the
+        optional LDA exchange-correlation, an approximation); continuum states above the
+        lower cladding edge hold no charge (a low-temperature model).
+
+        Parameters
+        ----------
+        temperature : float
+            K, > 0.
+        fermi_level : float, optional
+            Default None: E_F from overall neutrality with zero field at both ends. Given
+            (meV): E_F fixed, U = 0 at the left end (or set by ``surface_barrier``), zero
+            field at the right end.
+        surface_barrier : float, optional
+            A surface (Schottky-type) barrier φ_B (meV) pinning E_F at the left end:
+            E_c(0) + U(0) − E_F = φ_B. Needs ``fermi_level``.
+        tol : float
+            Self-consistency of the electrostatic energy (meV).
+        max_iter : int
+            Iterations before a ``ConvergenceError`` (its ``rates`` hold the residual history).
+        exchange_correlation : bool
+            Add the Hedin-Lundqvist (1971) LDA exchange-correlation potential.
+        accuracy : float
+            Relative accuracy of the levels (sizes the element mesh).
+        mixing : float
+            Anderson mixing damping in (0, 1].
+
+        Raises
+        ------
+        ValueError
+            Non-positive temperature, a layer without permittivity, ``surface_barrier``
+            without ``fermi_level``.
+        ConvergenceError
+            No convergence within ``max_iter``.
+
+        Warns
+        -----
+        UserWarning
+            A structure without net donor charge: E_F is undefined; the flat-band levels
+            are returned (``note`` says so).
+        """
     @property
     def cladding_edges(self) -> Tuple[float, float]:
         """Band edges (meV) of the left and right claddings, field term included: a level below both is bound."""

@@ -7,7 +7,7 @@ from typing import Optional, Sequence
 import numpy as np
 
 __all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack", "plot_band_diagram",
-           "plot_stark_fan"]
+           "plot_stark_fan", "plot_self_consistent"]
 
 
 def _axes(ax):
@@ -362,4 +362,55 @@ def plot_stark_fan(batch, fields: Sequence[float], ax=None, *, marker_unbound: s
                 ax.plot(f[out], e[out, k], ls="none", marker=marker_unbound, color="0.3")
     ax.set_xlabel("field (kV/cm)")
     ax.set_ylabel("energy (meV)")
+    return ax
+
+
+def plot_self_consistent(solution, ax=None, *, z: Optional[Sequence[float]] = None, density: bool = True):
+    """Band diagram of a Schrödinger-Poisson solution: the total band edge, the Fermi
+    level, the occupied levels with |ψ|², and the electron density on a twin axis.
+
+    Parameters
+    ----------
+    solution : SelfConsistent
+        From ``Heterostructure.self_consistent``.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    z : array_like, optional
+        Plot points (nm); default: the stack plus 20 % on each side.
+    density : bool
+        Draw n(z) (cm⁻³) on a right-hand twin axis (``ax.specwell_density_axis``).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    spec = solution.spectrum
+    stack = spec.heterostructure
+    ax = _axes(ax)
+    total = float(stack.total_thickness)
+    z = np.linspace(-0.2 * total, 1.2 * total, 1400) if z is None else np.asarray(z, dtype=float)
+    v = np.asarray(solution.potential(z))
+    ax.plot(z, v, color="0.15", lw=1.6, label="band edge")
+    e = np.asarray(spec.energies)
+    psi = spec.wavefunctions(z) ** 2
+    vr = float(np.ptp(v)) or 1.0
+    scale = 0.08 * vr
+    for en, p, ns in zip(e, psi, solution.sheet_densities):
+        line, = ax.plot(z, en + scale * p / max(p.max(), 1e-300), lw=1.1, label=f"{ns:.2e} cm⁻²")
+        ax.hlines(en, z[0], z[-1], color=line.get_color(), lw=0.6, ls="--")
+    if np.isfinite(solution.fermi_level):
+        ax.axhline(solution.fermi_level, color="C3", lw=1.0, ls="-.", label="E_F")
+    lo, hi = float(v.min()), float(v.max())
+    ax.set_ylim(lo - 0.05 * (hi - lo), hi + 0.08 * (hi - lo))
+    ax.set_xlim(z[0], z[-1])
+    ax.set_xlabel("z (nm)")
+    ax.set_ylabel("energy (meV)")
+    ax.legend(fontsize="small", loc="upper right")
+    if density:
+        ax2 = ax.twinx()
+        ax2.fill_between(z, solution.density(z), color="C0", alpha=0.15)
+        ax2.set_ylabel("electron density (cm⁻³)", color="C0")
+        ax.specwell_density_axis = ax2
+    else:
+        ax.specwell_density_axis = None
     return ax

@@ -200,6 +200,16 @@ impl Hamiltonian {
         Ok(h)
     }
 
+    /// A Hamiltonian of `stack`'s masses on an element basis with a given total
+    /// potential (samples on the basis points, meV), e.g. band edge plus a
+    /// self-consistent electrostatic term; keeps the stack for bound flags and plots.
+    pub fn stack_with_potential(stack: &Heterostructure, basis: Arc<ElementBasis>, potential: Vec<f64>, units: Units) -> Result<Self> {
+        let masses = stack.mass(basis.points());
+        let mut h = Hamiltonian::new(BasisRef::Elements(basis), potential, Mass::Profile(masses), units)?;
+        h.stack = Some(Arc::new(stack.clone()));
+        Ok(h)
+    }
+
     /// The layered structure behind the Hamiltonian, if it was built from one.
     pub fn stack(&self) -> Option<&Arc<Heterostructure>> {
         self.stack.as_ref()

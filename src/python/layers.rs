@@ -188,6 +188,26 @@ impl PyHeterostructure {
         super::errors::warn_accuracy(py, &s)?;
         Ok(super::hamiltonian::PySpectrum { inner: Arc::new(s) })
     }
+    /// Schrödinger-Poisson solution with the layers' doping and permittivities (see `_core.pyi`).
+    #[pyo3(signature = (temperature, *, fermi_level=None, surface_barrier=None, tol=1e-6, max_iter=100,
+                        exchange_correlation=false, accuracy=1e-10, mixing=0.3))]
+    fn self_consistent(
+        &self,
+        py: Python<'_>,
+        temperature: f64,
+        fermi_level: Option<f64>,
+        surface_barrier: Option<f64>,
+        tol: f64,
+        max_iter: usize,
+        exchange_correlation: bool,
+        accuracy: f64,
+        mixing: f64,
+    ) -> PyResult<super::selfconsistent::PySelfConsistent> {
+        let o = super::selfconsistent::options(temperature, fermi_level, surface_barrier, tol, max_iter, exchange_correlation, accuracy, mixing)?;
+        let stack = self.inner.clone();
+        let s = py.detach(move || crate::selfconsistent::solve(&stack, &o)).py(py)?;
+        super::selfconsistent::wrap(py, s)
+    }
     /// Band edges of the left and right claddings (meV), field term included.
     #[getter]
     fn cladding_edges(&self) -> (f64, f64) {

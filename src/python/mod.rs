@@ -12,6 +12,7 @@ mod hamiltonian;
 mod layers;
 mod materials;
 mod propagate;
+mod selfconsistent;
 
 use pyo3::prelude::*;
 
@@ -32,6 +33,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<layers::PyLayer>()?;
     m.add_function(wrap_pyfunction!(layers::_layer_from_parts, m)?)?;
     m.add_class::<layers::PyHeterostructure>()?;
+    m.add_class::<selfconsistent::PySelfConsistent>()?;
+    m.add_function(wrap_pyfunction!(selfconsistent::self_consistent_batch, m)?)?;
     m.add_class::<propagate::PySplitStep>()?;
     m.add_class::<propagate::PyRun>()?;
     m.add_function(wrap_pyfunction!(propagate::_split_step_from_parts, m)?)?;
