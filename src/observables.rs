@@ -1,8 +1,39 @@
-//! Observables of a [`Spectrum`]: position (dipole) matrix and oscillator strengths.
+//! Observables of a [`Spectrum`]: position (dipole) matrix, oscillator strengths and
+//! overlaps between two spectra (Franck-Condon factors).
 
 use crate::eigen::Spectrum;
-use crate::error::Result;
+use crate::error::{InputError, Result};
 use faer::Mat;
+
+/// Overlaps S_ij = ⟨ψ_i^a|ψ_j^b⟩ (count_a × count_b) of the states of two spectra on the
+/// same basis (same kind, size and points) — e.g. two electronic states' vibrational
+/// levels on one grid; |S_ij|² are the Franck-Condon factors. Computed as a_iᵀ B b_j
+/// with the overlap matrix B of the discretisation (I for orthonormal bases); refused
+/// when the two discretisations' inner products differ (a heterostructure's mass
+/// coordinate depends on its layers: put both on `Heterostructure.solve`'s elements or
+/// the same mass profile).
+pub fn overlaps(a: &Spectrum, b: &Spectrum) -> Result<Mat<f64>> {
+    let (ha, hb) = (&a.hamiltonian, &b.hamiltonian);
+    let (pa, pb) = (ha.problem(), hb.problem());
+    let same_kind = std::mem::discriminant(ha.basis()) == std::mem::discriminant(hb.basis());
+    if !same_kind || pa.dim() != pb.dim() || ha.basis().as_dyn().points() != hb.basis().as_dyn().points() {
+        return Err(InputError::range("other", "a Spectrum on the same basis as this one (same kind, size and points)", "a different basis").into());
+    }
+    let n = pa.dim();
+    let kb = b.count();
+    let x: Vec<f64> = (0..kb).flat_map(|j| b.vectors.col(j).iter().copied().collect::<Vec<_>>()).collect();
+    let mut bx = vec![0.0; n * kb];
+    pa.apply_b(&x, &mut bx, kb);
+    if pa.structure().generalized || pb.structure().generalized {
+        let mut bx2 = vec![0.0; n * kb];
+        pb.apply_b(&x, &mut bx2, kb);
+        let scale = bx.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+        if bx.iter().zip(&bx2).any(|(p, q)| (p - q).abs() > 1e-12 * scale) {
+            return Err(InputError::range("other", "a Spectrum whose inner product (overlap matrix B) equals this one's", "a different mass profile on a mass-coordinate basis").into());
+        }
+    }
+    Ok(Mat::from_fn(a.count(), kb, |i, j| (0..n).map(|r| a.vectors[(r, i)] * bx[j * n + r]).sum()))
+}
 
 /// ⟨i|x|j⟩ between the states of the spectrum (length units), count × count.
 ///

@@ -70,3 +70,22 @@ def test_order4_imaginary_time_message_uses_the_api_values():
     g = sw.FourierGrid(-5, 5, 64)
     with pytest.raises(ValueError, match="`order` must be 2 in imaginary time"):
         sw.SplitStep(g, 0.5 * g.x**2, dt=0.01, order=4, imaginary_time=True)
+
+
+def test_franck_condon_factors_of_displaced_oscillators_are_poisson():
+    # Two harmonic potentials of equal frequency displaced by d: |⟨0|n'⟩|² = e^{−S} Sⁿ/n!
+    # with the Huang-Rhys factor S = d²/(2ℓ²), ℓ = 1/√(mω) (Huang & Rhys 1950; e.g.
+    # Atkins & Friedman, Molecular Quantum Mechanics, Franck-Condon factors of displaced
+    # oscillators). Natural units, m = ω = 1, d = 1.5: S = 1.125.
+    from math import factorial
+    grid = sw.FourierGrid(-14.0, 14.0, 256)
+    d = 1.5
+    lower = sw.Hamiltonian(grid, lambda x: 0.5 * x**2).solve(1)
+    upper = sw.Hamiltonian(grid, lambda x: 0.5 * (x - d) ** 2).solve(12)
+    fc = lower.overlaps(upper)[0] ** 2
+    s = d**2 / 2
+    poisson = np.array([np.exp(-s) * s**n / factorial(n) for n in range(12)])
+    np.testing.assert_allclose(fc, poisson, rtol=0, atol=1e-10)
+    assert lower.overlaps(upper).shape == (1, 12)
+    with pytest.raises(ValueError, match="`other`"):
+        lower.overlaps(sw.Hamiltonian(sw.FourierGrid(-14.0, 14.0, 128), lambda x: 0.5 * x**2).solve(1))

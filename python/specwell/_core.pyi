@@ -338,6 +338,20 @@ class Spectrum:
         m_i is the mass, or ⟨i|m(x)|i⟩ for a position-dependent mass (then the
         Thomas-Reiche-Kuhn sum rule holds only approximately).
         """
+    def overlaps(self, other: Spectrum) -> npt.NDArray[np.float64]:
+        """Overlaps ⟨ψ_i|φ_j⟩ with the states of ``other``, shape (len(self), len(other)).
+
+        Both spectra must live on the same basis (same kind, size and points), e.g. the
+        vibrational levels of two electronic states on one grid; the squares are the
+        Franck-Condon factors. Uses the discretisation's overlap matrix B (identity for
+        Fourier grids and Hermite bases).
+
+        Raises
+        ------
+        ValueError
+            ``other`` is on a different basis, or its inner product differs (a layered
+            Fourier problem's mass coordinate depends on the layers).
+        """
     def absorption(self, energies: npt.ArrayLike, broadening: float, shape: str = "lorentzian",
                    initial: int = 0) -> npt.NDArray[np.float64]:
         """Broadened absorption from state ``initial``: Σ_f f_if·L(E − (E_f − E_i)).

@@ -453,6 +453,12 @@ impl PySpectrum {
         let f = observables::oscillator_strengths(&self.inner).py(py)?;
         Ok(mat_to_py(py, f.as_ref()))
     }
+    /// ⟨ψ_i|φ_j⟩ with the states φ_j of `other` (same basis), shape (count, len(other)):
+    /// Franck-Condon factors are its squares.
+    fn overlaps<'py>(&self, py: Python<'py>, other: PyRef<'py, PySpectrum>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let s = observables::overlaps(&self.inner, &other.inner).py(py)?;
+        Ok(mat_to_py(py, s.as_ref()))
+    }
     fn __len__(&self) -> usize {
         self.inner.count()
     }
