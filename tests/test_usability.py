@@ -87,5 +87,24 @@ def test_franck_condon_factors_of_displaced_oscillators_are_poisson():
     poisson = np.array([np.exp(-s) * s**n / factorial(n) for n in range(12)])
     np.testing.assert_allclose(fc, poisson, rtol=0, atol=1e-10)
     assert lower.overlaps(upper).shape == (1, 12)
+    # On different bases (each Hermite basis centred on its own minimum): quadrature.
+    a = sw.Hamiltonian(sw.HermiteBasis(40, center=0.0), lambda x: 0.5 * x**2).solve(1)
+    b = sw.Hamiltonian(sw.HermiteBasis(40, center=d), lambda x: 0.5 * (x - d) ** 2).solve(12)
+    np.testing.assert_allclose(a.overlaps(b)[0] ** 2, poisson, rtol=0, atol=1e-12)
+    # And between a grid and a Hermite basis.
+    np.testing.assert_allclose(lower.overlaps(b)[0] ** 2, poisson, rtol=0, atol=1e-10)
     with pytest.raises(ValueError, match="`other`"):
-        lower.overlaps(sw.Hamiltonian(sw.FourierGrid(-14.0, 14.0, 128), lambda x: 0.5 * x**2).solve(1))
+        lower.overlaps(sw.Hamiltonian(sw.FourierGrid(20.0, 30.0, 64), lambda x: 0.5 * x**2).solve(1))
+
+
+def test_matrix_elements_of_the_oscillator():
+    # ⟨m|x²|n⟩ of the harmonic oscillator (m = ω = ħ = 1): (2n+1)/2 on the diagonal,
+    # √((n+1)(n+2))/2 two off it (Griffiths, Introduction to QM, §2.3, ladder operators).
+    s = sw.Hamiltonian(sw.HermiteBasis(40), lambda x: 0.5 * x**2).solve(6)
+    m = s.matrix_elements(lambda x: x**2)
+    n = np.arange(6)
+    expected = np.diag((2 * n + 1) / 2) + np.diag(np.sqrt((n[:-2] + 1) * (n[:-2] + 2)) / 2, 2)
+    expected = expected + np.triu(expected, 1).T
+    np.testing.assert_allclose(m, expected, rtol=0, atol=1e-11)
+    with pytest.raises(TypeError, match="`g`"):
+        s.matrix_elements(3.0)

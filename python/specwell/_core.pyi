@@ -341,16 +341,35 @@ class Spectrum:
     def overlaps(self, other: Spectrum) -> npt.NDArray[np.float64]:
         """Overlaps ⟨ψ_i|φ_j⟩ with the states of ``other``, shape (len(self), len(other)).
 
-        Both spectra must live on the same basis (same kind, size and points), e.g. the
-        vibrational levels of two electronic states on one grid; the squares are the
-        Franck-Condon factors. Uses the discretisation's overlap matrix B (identity for
-        Fourier grids and Hermite bases).
+        The squares are Franck-Condon factors when the two spectra are the vibrational
+        levels of two electronic states. On the same basis (same kind, size and points)
+        the overlap is exact (coefficients and the discretisation's overlap matrix B);
+        on different bases (e.g. two Hermite bases centred on each potential's minimum)
+        it is a composite Gauss-Lobatto-Legendre quadrature of ψ_i(x)φ_j(x) over the x
+        range both bases cover: round-off accurate for smooth states, about 1e-7 where a
+        state has a kink (layer interfaces) inside a quadrature panel.
 
         Raises
         ------
         ValueError
-            ``other`` is on a different basis, or its inner product differs (a layered
-            Fourier problem's mass coordinate depends on the layers).
+            The two bases share no x range.
+        """
+    def matrix_elements(self, g: Callable[[npt.NDArray[np.float64]], npt.ArrayLike]) -> npt.NDArray[np.float64]:
+        """Matrix elements ⟨ψ_i|g(x)|ψ_j⟩, shape (count, count).
+
+        Parameters
+        ----------
+        g : callable
+            Vectorised g(x) (x in the basis's length unit), called once with the
+            quadrature nodes (composite Gauss-Lobatto-Legendre over the basis's x range);
+            round-off accurate for smooth states and g, about 1e-7 where ψ or g has a kink.
+
+        Raises
+        ------
+        TypeError
+            ``g`` is not callable.
+        ValueError
+            ``g`` returns the wrong number of values or non-finite ones.
         """
     def absorption(self, energies: npt.ArrayLike, broadening: float, shape: str = "lorentzian",
                    initial: int = 0) -> npt.NDArray[np.float64]:

@@ -459,6 +459,16 @@ impl PySpectrum {
         let s = observables::overlaps(&self.inner, &other.inner).py(py)?;
         Ok(mat_to_py(py, s.as_ref()))
     }
+    /// ⟨i|g(x)|j⟩, shape (count, count), for a vectorised callable g(x).
+    fn matrix_elements<'py>(&self, py: Python<'py>, g: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        if !g.is_callable() {
+            return Err(pyo3::exceptions::PyTypeError::new_err("`g` must be a vectorised callable g(x) returning one value per point"));
+        }
+        let (xs, ws) = observables::matrix_element_rule(&self.inner).py(py)?;
+        let v = vec_f64(&g.call1((PyArray1::from_slice(py, &xs),))?, "g", Some(xs.len()))?;
+        let m = observables::matrix_elements(&self.inner, &xs, &ws, &v).py(py)?;
+        Ok(mat_to_py(py, m.as_ref()))
+    }
     fn __len__(&self) -> usize {
         self.inner.count()
     }
