@@ -403,7 +403,7 @@ impl super::Basis for ElementBasis {
     }
     fn describe(&self) -> String {
         let (a, b) = (self.breakpoints[0], self.breakpoints[self.breakpoints.len() - 1]);
-        format!("ElementBasis(elements={}, order={}, interval=[{a}, {b}], unknowns={})", self.elements.len(), self.order(), self.size())
+        format!("ElementBasis(elements={}, order={}, interval=[{a:.6}, {b:.6}], unknowns={})", self.elements.len(), self.order(), self.size())
     }
 }
 

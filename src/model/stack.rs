@@ -182,6 +182,12 @@ impl Heterostructure {
         self.layers[self.layer_index(z)].mass
     }
 
+    /// Exact (min, max) of V(z) over all z (meV): V is linear inside each layer, so the
+    /// extremes lie at layer ends (claddings constant beyond the stack).
+    pub fn potential_range(&self) -> (f64, f64) {
+        self.layers.iter().enumerate().flat_map(|(i, l)| [l.band_edge + self.field_energy(self.bounds[i]), l.band_edge + self.field_energy(self.bounds[i + 1])]).fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)))
+    }
+
     /// V(z) (meV) on the points z (nm), for plotting and collocation.
     pub fn potential(&self, z: &[f64]) -> Vec<f64> {
         z.iter().map(|&z| self.potential_at(z)).collect()

@@ -47,3 +47,10 @@ pub fn unit_suffix(symbol: &str) -> String {
         format!(" ({symbol})")
     }
 }
+
+/// `value` in fixed point with as many decimals as its uncertainty `err` supports
+/// (one guard digit), between 2 and 12.
+pub fn fixed_to(value: f64, err: f64) -> String {
+    let d = if err.is_finite() && err > 0.0 { (1.0 - err.log10()).ceil().clamp(2.0, 12.0) as usize } else { 12 };
+    format!("{value:.d$}")
+}

@@ -14,7 +14,7 @@ use crate::observables;
 use crate::model::units::Units;
 use numpy::{PyArray1, PyArray2};
 use num_complex::Complex64;
-use super::display::{key_value_table, table, unit_suffix};
+use super::display::{fixed_to, key_value_table, table, unit_suffix};
 use pyo3::prelude::*;
 use pyo3::types::{PyFloat, PyTuple, PyType};
 use std::sync::Arc;
@@ -190,15 +190,18 @@ impl PyHamiltonian {
     fn _repr_html_(&self) -> String {
         let h = &self.inner;
         let sym = h.units().symbols();
-        let v = h.potential();
-        let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        // Exact for a stack (piecewise linear); otherwise the samples at the basis points.
+        let (label, (lo, hi)) = match h.stack() {
+            Some(s) => ("potential range", s.potential_range()),
+            None => ("potential at basis points", h.potential().iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)))),
+        };
         key_value_table(
             "Hamiltonian",
             &[
                 ("basis", h.basis().as_dyn().describe()),
                 ("units", h.units().name().to_string()),
                 ("mass", format!("{}{}", mass_text(h.mass()), unit_suffix(sym[2]))),
-                ("potential range", format!("[{lo:.6}, {hi:.6}]{}", unit_suffix(sym[1]))),
+                (label, format!("[{lo:.6}, {hi:.6}]{}", unit_suffix(sym[1]))),
                 ("dimension", h.size().to_string()),
             ],
         )
@@ -499,19 +502,31 @@ impl PySpectrum {
         let eu = unit_suffix(sym[1]);
         let header = vec!["n".to_string(), format!("E{eu}"), format!("E − E₀{eu}"), format!("residual{eu}")];
         let e0 = s.energies.first().cloned().unwrap_or(0.0);
-        let rows: Vec<Vec<String>> = s
-            .energies
-            .iter()
-            .zip(&s.residuals)
-            .enumerate()
-            .map(|(n, (e, r))| vec![n.to_string(), format!("{e:.10}"), format!("{:.10}", e - e0), format!("{r:.1e}")])
+        // Decimals from each level's error estimate (elements) or its residual, which
+        // bounds the error of a symmetric eigenvalue (Bauer-Fike).
+        let err = |n: usize| s.errors.as_ref().map_or(s.residuals[n], |e| e[n].max(f64::EPSILON * s.energies[n].abs()));
+        let mut header = header;
+        if s.errors.is_some() {
+            header.push(format!("error{eu}"));
+        }
+        let rows: Vec<Vec<String>> = (0..s.count())
+            .map(|n| {
+                let e = s.energies[n];
+                let mut row = vec![n.to_string(), fixed_to(e, err(n)), fixed_to(e - e0, err(n)), format!("{:.1e}", s.residuals[n])];
+                if let Some(errs) = &s.errors {
+                    row.push(format!("{:.1e}", errs[n]));
+                }
+                row
+            })
             .collect();
-        let title = format!("Spectrum: {} states, {} method, {}", s.count(), s.method.name(), s.basis().as_dyn().describe());
+        let states = if s.count() == 1 { "state" } else { "states" };
+        let title = format!("Spectrum: {} {states}, {} method, {}", s.count(), s.method.name(), s.basis().as_dyn().describe());
         table(&title, &header, &rows, 50)
     }
     fn __repr__(&self) -> String {
         let unit = self.inner.units().symbols()[1];
-        let e: Vec<String> = self.inner.energies.iter().take(6).map(|e| format!("{e:.10}")).collect();
+        let s = &self.inner;
+        let e: Vec<String> = (0..s.count().min(6)).map(|n| fixed_to(s.energies[n], s.errors.as_ref().map_or(s.residuals[n], |e| e[n]))).collect();
         let more = if self.inner.count() > 6 { ", …" } else { "" };
         format!("Spectrum(count={}, energies=[{}{}] {unit}, method={:?})", self.inner.count(), e.join(", "), more, self.inner.method.name())
     }
