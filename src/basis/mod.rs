@@ -11,15 +11,22 @@
 //!   c_j = ψ(x_j)·sqrt(dx).
 //! * [`LayeredBasis`]: periodic sinc functions in the mass coordinate s = ∫m dz of a
 //!   heterostructure (generalized problem A c = E B c; coefficients B-orthonormal).
+//! * [`ProductGrid`]: the tensor product of two or three Fourier grids (2D and 3D boxes).
+//!   It is not a [`Basis`] (no eigen solver runs on it); it and [`FourierGrid`] are the
+//!   [`PeriodicGrid`]s that split-step propagation runs on.
 
 pub mod fourier;
 pub mod hermite;
 pub mod hermite_math;
 pub mod layered;
+pub mod periodic;
+pub mod product;
 
 pub use fourier::FourierGrid;
 pub use hermite::HermiteBasis;
 pub use layered::LayeredBasis;
+pub use periodic::PeriodicGrid;
+pub use product::ProductGrid;
 
 use crate::error::InputError;
 
