@@ -42,7 +42,7 @@ pub trait PeriodicGrid: Send + Sync + std::fmt::Debug {
     /// In-place unnormalised inverse transform (e^{+ik·x}) of a whole spectrum of `len()` entries.
     fn inverse(&self, psi: &mut [Complex64], scratch: &mut [Complex64]);
     /// Short human-readable description.
-    fn describe(&self) -> String;
+    fn describe_grid(&self) -> String;
 
     /// |k|² = Σ_a k_a² at every point of the spectrum layout (row-major).
     fn k_squared(&self) -> Vec<f64> {
@@ -88,7 +88,7 @@ impl PeriodicGrid for FourierGrid {
     fn inverse(&self, psi: &mut [Complex64], scratch: &mut [Complex64]) {
         FourierGrid::inverse(self).process_with_scratch(psi, scratch);
     }
-    fn describe(&self) -> String {
+    fn describe_grid(&self) -> String {
         <FourierGrid as super::Basis>::describe(self)
     }
     fn k_squared(&self) -> Vec<f64> {

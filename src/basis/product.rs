@@ -50,7 +50,7 @@ pub struct ProductGrid {
 
 impl std::fmt::Debug for ProductGrid {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}", self.describe())
+        write!(f, "{}", self.describe_grid())
     }
 }
 
@@ -193,7 +193,7 @@ impl PeriodicGrid for ProductGrid {
             self.transform_axis(a, psi, scratch, true);
         }
     }
-    fn describe(&self) -> String {
+    fn describe_grid(&self) -> String {
         let parts: Vec<String> = self
             .axes
             .iter()
