@@ -2,10 +2,13 @@
 
 Spectral bases (Gauss-Hermite functions, Fourier grids, exact-layer
 heterostructures), a Rust core that builds and diagonalises Hamiltonians and
-propagates wavepackets by split-step Fourier, and a numpy-first API.
+propagates wavepackets by split-step Fourier, and a numpy-first API. Split-step
+propagation and imaginary time also run on 2D and 3D product grids, with an
+optional mean-field (Gross-Pitaevskii) term for trapped condensates.
 
 Model limits: single-particle, single-band effective-mass Schrödinger equation
-(parabolic bands, no many-body effects). See the README for conventions.
+(parabolic bands, no many-body effects beyond the Gross-Pitaevskii mean field
+g|ψ|² of ``SplitStep(..., nonlinearity=g)``). See the README for conventions.
 """
 
 from specwell._core import (
@@ -15,15 +18,20 @@ from specwell._core import (
     UNITS,
     ConvergenceError,
     FourierGrid,
+    GroundState,
     Hamiltonian,
     HermiteBasis,
     Heterostructure,
     Layer,
+    ProductGrid,
     Run,
     Spectrum,
     SplitStep,
     __version__,
+    angular_frequency,
+    coupling_constant,
     eigh,
+    oscillator_length,
     solve_batch,
 )
 from specwell.io import load, save
@@ -36,19 +44,24 @@ __all__ = [
     "UNITS",
     "ConvergenceError",
     "FourierGrid",
+    "GroundState",
     "Hamiltonian",
     "HermiteBasis",
     "Heterostructure",
     "Layer",
+    "ProductGrid",
     "Run",
     "Spectrum",
     "SplitStep",
     "__version__",
+    "angular_frequency",
     "autocorrelation_spectrum",
+    "coupling_constant",
     "eigenstate",
     "eigh",
     "gaussian_packet",
     "load",
+    "oscillator_length",
     "save",
     "solve_batch",
     "superposition",

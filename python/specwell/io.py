@@ -23,7 +23,9 @@ def _basis_header(basis) -> dict:
                 "length": basis.length, "quadrature": basis.quadrature}
     if isinstance(basis, _core.FourierGrid):
         return {"kind": "FourierGrid", "start": basis.start, "stop": basis.stop, "points": basis.points}
-    raise TypeError(f"`basis` must be a HermiteBasis or FourierGrid; got {type(basis).__name__}")
+    if isinstance(basis, _core.ProductGrid):
+        return {"kind": "ProductGrid", "axes": [_basis_header(g) for g in basis.axes]}
+    raise TypeError(f"`basis` must be a HermiteBasis, FourierGrid or ProductGrid; got {type(basis).__name__}")
 
 
 def _basis_from_header(h: dict):
@@ -31,6 +33,8 @@ def _basis_from_header(h: dict):
         return _core.HermiteBasis(h["size"], h["center"], h["length"], h["quadrature"])
     if h["kind"] == "FourierGrid":
         return _core.FourierGrid(h["start"], h["stop"], h["points"])
+    if h["kind"] == "ProductGrid":
+        return _core.ProductGrid(*[_basis_from_header(a) for a in h["axes"]])
     raise ValueError(f"unknown basis kind {h['kind']!r} in file")
 
 
@@ -84,6 +88,10 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         arrays = dict(times=result.times, states=result.states, norm=result.norm, mean_x=result.mean_x,
                       mean_p=result.mean_p, energy=result.energy, autocorrelation=result.autocorrelation,
                       record_steps=np.asarray(result.record_steps, dtype=np.int64), x=result.x)
+        for name in _EXTRA_AXES:
+            value = getattr(result, name)
+            if value is not None:
+                arrays[name] = value
     else:
         raise TypeError(f"`result` must be a specwell result (Spectrum, Run, ...); got {type(result).__name__}")
     np.savez(path, header=np.array(json.dumps(header)), **arrays)
@@ -110,12 +118,17 @@ def load(path: Union[str, os.PathLike]):
         return loaders(header, {k: f[k] for k in f.files if k != "header"})
 
 
+# Observables of the y and z axes of 2D/3D runs (absent from 1D files).
+_EXTRA_AXES = ("mean_y", "mean_z", "mean_py", "mean_pz")
+
+
 def _load_run(header: dict, f: dict):
     grid = _basis_from_header(header["basis"])
+    extra = [f.get(name) for name in _EXTRA_AXES]
     return _core._run_from_parts(grid, header["units"], [int(k) for k in f["record_steps"]], f["times"],
                                  f["states"].ravel(), f["norm"], f["mean_x"], f["mean_p"], f["energy"],
                                  f["autocorrelation"], header["absorbed_norm"], header["steps_done"],
-                                 header["cancelled"])
+                                 header["cancelled"], *extra)
 
 
 _LOADERS: dict = {"Run": _load_run}
