@@ -1402,6 +1402,58 @@ mod tests {
         }
     }
 
+    // Timing (printed, not asserted): the nonlinear kick (one pass, fast sin/cos) against the
+    // linear table multiply and against libm's sin_cos, thread CPU time.
+    #[test]
+    #[ignore = "timings only; run with --ignored"]
+    fn timing_nonlinear_kick() {
+        use super::kernels::{kick_nonlinear, NlCoef};
+        let n = 1 << 18;
+        let mut a: Vec<Complex64> = (0..n).map(|j| Complex64::from_polar(0.01, j as f64 * 1e-3)).collect();
+        let t = vec![Complex64::from_polar(1.0, 0.2); n];
+        let reps = 20;
+        let lin = best_of(reps, true, || mul_seq(&mut a, &t));
+        let nl = best_of(reps, true, || kick_nonlinear(&mut a, &t, &NlCoef::Uniform(0.3), None, false, false));
+        let libm = best_of(reps, true, || {
+            for (x, y) in a.iter_mut().zip(&t) {
+                let (s, c) = (-0.3 * x.norm_sqr()).sin_cos();
+                *x *= *y * Complex64::new(c, s);
+            }
+        });
+        println!(
+            "n=2^18 kick (thread CPU): linear table {:.2} ns/pt, nonlinear (fast sin/cos) {:.2} ns/pt, with libm sin_cos {:.2} ns/pt",
+            lin * 1e9 / n as f64,
+            nl * 1e9 / n as f64,
+            libm * 1e9 / n as f64
+        );
+    }
+
+    // Timing (printed, not asserted): 2D/3D steps vs the bare whole-state FFT pair (wall time:
+    // the FFTs use rayon), linear and with g.
+    #[test]
+    #[ignore = "timings only; run with --ignored"]
+    fn timing_per_step_nd() {
+        for (spec, steps) in [(vec![(-20.0, 20.0, 512), (-20.0, 20.0, 512)], 10usize), (vec![(-10.0, 10.0, 128); 3], 4)] {
+            let (o, xs) = cfg_nd(&spec, |p| 0.5 * p.iter().map(|x| x * x).sum::<f64>(), 1e-3);
+            let bare = kernels::bare_grid_fft_pair_seconds(&*o.grid, 3);
+            let pts = points(&xs);
+            let psi0 = normalised(pts.iter().map(|p| c((-p.iter().map(|x| x * x).sum::<f64>()).exp())).collect(), o.grid.cell_volume());
+            let mut line = format!("{:?}: bare FFT pair {:.2} ms", o.grid.shape(), bare * 1e3);
+            for g in [0.0, 5.0] {
+                let sp = SplitStep::new(SplitStepOptions { nonlinearity: g, ..o.clone() }).unwrap();
+                let t1 = best_of(1, false, || {
+                    sp.run(&psi0, steps, steps, &mut yes).unwrap();
+                });
+                let t2 = best_of(1, false, || {
+                    sp.run(&psi0, 2 * steps, 2 * steps, &mut yes).unwrap();
+                });
+                let per = (t2 - t1) / steps as f64;
+                line += &format!(", g={g}: {:.2} ms/step ({:.2}× the pair)", per * 1e3, per / bare);
+            }
+            println!("{line}");
+        }
+    }
+
     // Timing (printed, not asserted): a step vs two bare in-place FFTs of the same size.
     // Minimum over 5 blocks.
     #[test]
