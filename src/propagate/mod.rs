@@ -111,6 +111,9 @@ use kernels::{kick_nonlinear, mul, mul_drive, NlCoef};
 /// (n = 2^14 … 2^18, see the timing tests); the loops are memory-bound.
 /// [`SplitStep::set_parallel_threshold`] turns it on for larger machines.
 const DEFAULT_PAR_THRESHOLD: usize = usize::MAX;
+/// Grid size from which the nonlinear kick uses rayon (outside a rayon worker): unlike the
+/// table multiplies it is compute-bound (a sine and cosine per point, ~4 ns).
+const NL_PAR_MIN: usize = 1 << 15;
 
 /// Order of the splitting.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -475,7 +478,10 @@ impl SplitStep {
         match (&self.nl, drive) {
             (None, Some((v1, coef))) => mul_drive(psi, table, v1, coef, par),
             (None, None) => mul(psi, table, par),
-            (Some(nl), drive) => kick_nonlinear(psi, table, &nl[slot], drive, self.options.imaginary_time, par),
+            (Some(nl), drive) => {
+                let par = par || (psi.len() >= NL_PAR_MIN && rayon::current_thread_index().is_none());
+                kick_nonlinear(psi, table, &nl[slot], drive, self.options.imaginary_time, par)
+            }
         }
     }
 
