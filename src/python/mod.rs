@@ -38,6 +38,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(propagate::_split_step_from_parts, m)?)?;
     m.add_function(wrap_pyfunction!(propagate::_bare_fft_pair_seconds, m)?)?;
     m.add_function(wrap_pyfunction!(propagate::_run_from_parts, m)?)?;
+    m.add_function(wrap_pyfunction!(propagate::_ground_state_from_parts, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::eigh, m)?)?;
     m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_spectrum_from_parts, m)?)?;

@@ -505,12 +505,66 @@ impl PyGroundState {
     fn units(&self) -> &'static str {
         self.units.name()
     }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
+        let py = slf.py();
+        let s = slf.get();
+        let r = &s.inner;
+        let ctor = py.import("specwell._core")?.getattr("_ground_state_from_parts")?;
+        let args = PyTuple::new(
+            py,
+            [
+                s.shape.clone().into_pyobject(py)?.into_any().unbind(),
+                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                s.nonlinearity.into_pyobject(py)?.into_any().unbind(),
+                r.energies[0].into_pyobject(py)?.into_any().unbind(),
+                r.energy_functional[0].into_pyobject(py)?.into_any().unbind(),
+                PyArray1::from_slice(py, &r.states).into_any().unbind(),
+                r.residuals[0].into_pyobject(py)?.into_any().unbind(),
+                r.steps.into_pyobject(py)?.into_any().unbind(),
+                r.rates[0].into_pyobject(py)?.into_any().unbind(),
+                r.refine_iterations.into_pyobject(py)?.into_any().unbind(),
+            ],
+        )?;
+        Ok((ctor, args))
+    }
     fn __repr__(&self) -> String {
         format!(
             "GroundState(chemical_potential={}, energy={}, residual={:.2e}, steps={})",
             self.inner.energies[0], self.inner.energy_functional[0], self.inner.residuals[0], self.inner.steps
         )
     }
+}
+
+/// Rebuild a GroundState from its parts (target of `GroundState.__reduce__`).
+#[pyfunction]
+pub fn _ground_state_from_parts(
+    shape: Vec<usize>,
+    units: &str,
+    nonlinearity: f64,
+    chemical_potential: f64,
+    energy: f64,
+    state: Vec<Complex64>,
+    residual: f64,
+    steps: usize,
+    rate: f64,
+    refine_iterations: usize,
+) -> PyResult<PyGroundState> {
+    let units = Units::parse(units).map_err(|e| PyValueError::new_err(e.to_string()))?;
+    let n: usize = shape.iter().product();
+    if shape.is_empty() || shape.len() > 3 || n == 0 || state.len() != n {
+        return Err(PyValueError::new_err("inconsistent GroundState parts (shape and state size differ)"));
+    }
+    let inner = GroundStates {
+        n,
+        energies: vec![chemical_potential],
+        energy_functional: vec![energy],
+        states: state,
+        steps,
+        rates: vec![rate],
+        residuals: vec![residual],
+        refine_iterations,
+    };
+    Ok(PyGroundState { inner, shape, units, nonlinearity })
 }
 
 /// tqdm progress bar driven from the Rust loop (a no-op when progress=False).
