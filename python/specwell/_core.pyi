@@ -8,7 +8,8 @@ import numpy.typing as npt
 __all__ = [
     "AccuracyWarning", "Batch", "ConvergenceError", "FourierGrid", "GroundState", "Hamiltonian", "HermiteBasis",
     "Heterostructure", "Layer", "METHODS", "ProductGrid", "Run", "Spectrum", "SplitStep", "UNITS", "__version__",
-    "_bare_fft_pair_seconds", "_bare_grid_fft_pair_seconds", "_batch_from_spectra", "_run_from_parts",
+    "_bare_fft_pair_seconds", "_bare_grid_fft_pair_seconds", "_batch_from_spectra", "_ground_state_from_parts",
+    "_run_from_parts",
     "_spectrum_from_parts", "_split_step_from_parts", "angular_frequency", "coupling_constant", "eigh",
     "oscillator_length", "solve_batch", "unit_constants",
 ]
