@@ -333,3 +333,38 @@ def test_state_whose_norm_overflows_is_refused():
 def test_float_size_is_type_error_naming_argument():
     with pytest.raises(TypeError, match=r"`size`"):
         sw.HermiteBasis(2.5)
+
+
+# --------------------------------------------------------------------------- product grids, GPE
+
+
+def test_product_grid_arguments_named():
+    g = sw.FourierGrid(-1.0, 1.0, 8)
+    for bad, name in [((None, g), "gx"), ((g, 3.0), "gy"), ((g, g, "z"), "gz")]:
+        with pytest.raises(TypeError, match=rf"`{name}`.*FourierGrid"):
+            sw.ProductGrid(*bad)
+    big = sw.FourierGrid(0.0, 1.0, 1 << 15)
+    with pytest.raises(ValueError, match=r"`axes`.*points"):
+        sw.ProductGrid(big, big, big)
+
+
+@pytest.mark.parametrize("bad", [NAN, INF, -INF])
+def test_nonlinearity_not_finite(grid, bad):
+    with pytest.raises(ValueError, match=r"`nonlinearity`.*finite"):
+        sw.SplitStep(grid, np.zeros(16), dt=0.1, nonlinearity=bad)
+
+
+def test_nonlinearity_not_a_number(grid):
+    with pytest.raises(TypeError):
+        sw.SplitStep(grid, np.zeros(16), dt=0.1, nonlinearity="strong")
+
+
+def test_cold_atom_helpers_name_arguments():
+    with pytest.raises(ValueError, match=r"`frequency_hz`"):
+        sw.angular_frequency(-1.0)
+    with pytest.raises(ValueError, match=r"`frequency_hz`"):
+        sw.oscillator_length(87.0, 0.0)
+    with pytest.raises(ValueError, match=r"`mass`"):
+        sw.oscillator_length(-87.0, 10.0)
+    with pytest.raises(ValueError, match=r"`units`.*cold-atom"):
+        sw.coupling_constant(0.005, 1e4, 87.0, units="SI")

@@ -168,6 +168,8 @@ LAYERS = [sw.Layer(5.0, 200.0, 0.067), sw.Layer(6.0, 0.0, 0.067), sw.Layer(5.0, 
 HET = sw.Heterostructure(LAYERS)
 HGRID = sw.FourierGrid(-5.0, 21.0, 32)
 BATCH = sw.solve_batch(GRID, np.array([V_GRID, V_GRID + 0.1 * GRID.x]), 2, method="dense")
+PG = sw.ProductGrid(sw.FourierGrid(-4.0, 4.0, 8), sw.FourierGrid(-3.0, 3.0, 6))
+PSI_PG = sw.gaussian_packet(PG, (0.0, 0.0))
 
 
 def attempt(fn, *args, **kwargs):
@@ -398,6 +400,39 @@ def test_fuzz_run_many_ground_states_drive_times(data):
     a, k = draw_args(data, [("steps", st.integers(0, 20), True, False)])
     if not _known_crash_drive_sample_times(*a, **k):
         attempt(SS.drive_sample_times, *a, **k)
+
+
+@fuzz_settings
+@given(data=st.data())
+def test_fuzz_product_grid_and_nonlinearity(data):
+    a, k = draw_args(data, [("gx", st.just(PG.axes[0]), True, False), ("gy", st.just(PG.axes[1]), True, False),
+                            ("gz", st.sampled_from([None, PG.axes[1]]), True, True)])
+    attempt(sw.ProductGrid, *a, **k)
+    a, k = draw_args(data, [
+        ("grid", st.sampled_from([PG, GRID]), True, False),
+        ("potential", st.sampled_from([np.zeros((8, 6)), (lambda x, y: x * y), V_GRID, (lambda x: x)]), True, False),
+        ("dt", st.floats(0.001, 0.1), True, True),
+        ("nonlinearity", st.floats(-5, 5), False, True),
+        ("imaginary_time", st.booleans(), False, True),
+        ("absorber_width", st.sampled_from([None, 1.0]), False, True),
+        ("absorber_potential", st.sampled_from([None, np.zeros((8, 6)), np.zeros(16)]), False, True),
+    ])
+    ss = attempt(sw.SplitStep, *a, **k)
+    if ss is not None:
+        psi = PSI_PG if isinstance(ss.grid, sw.ProductGrid) else PSI
+        r = attempt(ss.run, psi, 3)
+        if r is not None:
+            assert r.states.shape[1:] == psi.shape
+        attempt(ss.ground_states, data.draw(st.integers(1, 2), label="count"), max_steps=50)
+    a, k = draw_args(data, [("scattering_length", st.floats(-0.01, 0.01), True, False),
+                            ("atom_number", st.floats(1, 1e5), True, False), ("mass", st.floats(1, 200), True, False),
+                            ("dims", st.sampled_from([1, 2, 3]), True, True),
+                            ("confinement_hz", st.sampled_from([None, 100.0]), True, True),
+                            ("units", st.sampled_from(sw.UNITS), True, True)])
+    attempt(sw.coupling_constant, *a, **k)
+    a, k = draw_args(data, [("mass", st.floats(1, 200), True, False), ("frequency_hz", st.floats(1, 1e4), True, False),
+                            ("units", st.sampled_from(sw.UNITS), True, True)])
+    attempt(sw.oscillator_length, *a, **k)
 
 
 @fuzz_settings

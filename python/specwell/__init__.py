@@ -2,10 +2,13 @@
 
 Spectral bases (Gauss-Hermite functions, Fourier grids, exact-layer
 heterostructures), a Rust core that builds and diagonalises Hamiltonians and
-propagates wavepackets by split-step Fourier, and a numpy-first API.
+propagates wavepackets by split-step Fourier, and a numpy-first API. Split-step
+propagation and imaginary time also run on 2D and 3D product grids, with an
+optional mean-field (Gross-Pitaevskii) term for trapped condensates.
 
 Model limits: single-particle, single-band effective-mass Schrödinger equation
-(parabolic bands, no many-body effects). See the README for conventions.
+(parabolic bands, no many-body effects beyond the Gross-Pitaevskii mean field
+g|ψ|² of ``SplitStep(..., nonlinearity=g)``). See the README for conventions.
 """
 
 from specwell._core import (
@@ -17,19 +20,24 @@ from specwell._core import (
     ConvergenceError,
     ElementBasis,
     FourierGrid,
+    GroundState,
     Hamiltonian,
     HermiteBasis,
     Heterostructure,
     Layer,
     Material,
+    ProductGrid,
     Run,
     SelfConsistent,
     Spectrum,
     SplitStep,
     __version__,
+    angular_frequency,
+    coupling_constant,
     eigh,
     material,
     self_consistent_batch,
+    oscillator_length,
     solve_batch,
     unit_constants,
 )
@@ -45,22 +53,27 @@ __all__ = [
     "ConvergenceError",
     "ElementBasis",
     "FourierGrid",
+    "GroundState",
     "Hamiltonian",
     "HermiteBasis",
     "Heterostructure",
     "Layer",
     "Material",
+    "ProductGrid",
     "Run",
     "SelfConsistent",
     "Spectrum",
     "SplitStep",
     "__version__",
+    "angular_frequency",
     "autocorrelation_spectrum",
+    "coupling_constant",
     "eigenstate",
     "eigh",
     "gaussian_packet",
     "load",
     "material",
+    "oscillator_length",
     "save",
     "self_consistent_batch",
     "solve_batch",

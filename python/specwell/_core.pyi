@@ -6,9 +6,13 @@ import numpy as np
 import numpy.typing as npt
 
 __all__ = [
-    "AccuracyWarning", "Batch", "ConvergenceError", "ElementBasis", "FourierGrid", "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer",
-    "MATERIALS", "METHODS", "Material", "Run", "SelfConsistent", "Spectrum", "SplitStep", "UNITS", "__version__", "_bare_fft_pair_seconds",
-    "_batch_from_spectra", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts", "_split_step_from_parts", "eigh", "material", "self_consistent_batch", "solve_batch", "unit_constants",
+    "AccuracyWarning", "Batch", "ConvergenceError", "ElementBasis", "FourierGrid", "GroundState",
+    "Hamiltonian", "HermiteBasis", "Heterostructure", "Layer", "MATERIALS", "METHODS", "Material",
+    "ProductGrid", "Run", "SelfConsistent", "Spectrum", "SplitStep", "UNITS", "__version__",
+    "_bare_fft_pair_seconds", "_bare_grid_fft_pair_seconds", "_batch_from_spectra",
+    "_ground_state_from_parts", "_layer_from_parts", "_run_from_parts", "_spectrum_from_parts",
+    "_split_step_from_parts", "angular_frequency", "coupling_constant", "eigh", "material",
+    "oscillator_length", "self_consistent_batch", "solve_batch", "unit_constants",
 ]
 __version__: str
 UNITS: list[str]
@@ -16,6 +20,8 @@ METHODS: list[str]
 MATERIALS: list[str]
 
 _PotentialLike = Union[Callable[[npt.NDArray[np.float64]], npt.ArrayLike], npt.ArrayLike]
+# On a ProductGrid: f(x, y) or f(x, y, z) called once with broadcastable coordinate arrays, or an array of grid.shape.
+_GridPotentialLike = Union[Callable[..., npt.ArrayLike], npt.ArrayLike]
 
 class ConvergenceError(RuntimeError):
     """An iterative method missed its tolerance.
@@ -174,6 +180,70 @@ class FourierGrid:
     def __len__(self) -> int: ...
 
 @final
+class ProductGrid:
+    """Periodic 2D or 3D grid: the tensor product of FourierGrids (x, y[, z]).
+
+    Parameters
+    ----------
+    gx, gy : FourierGrid
+        The x and y axes.
+    gz : FourierGrid, optional
+        The z axis (3D).
+
+    Notes
+    -----
+    States, potentials and absorbing potentials on the grid are arrays of shape ``shape`` =
+    (nx, ny[, nz]) indexed [i, j(, l)] ↔ (x_i, y_j(, z_l)) (numpy C order, ``indexing="ij"``).
+    The discrete norm is Σ|ψ|²·dV with dV = dx·dy(·dz). Split-step FFTs run along each axis
+    with the axes' plans, over rayon workers for grids of 2**15 points or more.
+
+    Raises
+    ------
+    TypeError
+        An axis is not a FourierGrid (the message names gx, gy or gz).
+    ValueError
+        More than 2**28 points in all.
+    """
+
+    def __new__(cls, gx: FourierGrid, gy: FourierGrid, gz: Optional[FourierGrid] = None) -> ProductGrid: ...
+    @property
+    def shape(self) -> list[int]:
+        """Points per axis (nx, ny[, nz])."""
+    @property
+    def ndim(self) -> int:
+        """Number of axes (2 or 3)."""
+    @property
+    def points(self) -> int:
+        """Total number of points."""
+    @property
+    def axes(self) -> list[FourierGrid]:
+        """The axis grids (x, y[, z])."""
+    @property
+    def x(self) -> npt.NDArray[np.float64]:
+        """Points of the x axis."""
+    @property
+    def y(self) -> npt.NDArray[np.float64]:
+        """Points of the y axis."""
+    @property
+    def z(self) -> Optional[npt.NDArray[np.float64]]:
+        """Points of the z axis (None on a 2D grid)."""
+    @property
+    def spacing(self) -> list[float]:
+        """Grid spacings (dx, dy[, dz])."""
+    @property
+    def dV(self) -> float:
+        """Cell volume dx·dy[·dz]."""
+    @property
+    def k(self) -> list[npt.NDArray[np.float64]]:
+        """Wave numbers 2π·fftfreq(n, d) of each axis."""
+    @property
+    def k_squared(self) -> npt.NDArray[np.float64]:
+        """|k|² = Σ k_a² on ``shape`` (FFT layout: numpy fftfreq order on every axis)."""
+    def mesh(self, sparse: bool = False) -> Tuple[npt.NDArray[np.float64], ...]:
+        """Coordinate arrays ``numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)``."""
+    def __len__(self) -> int: ...
+
+@final
 class Hamiltonian:
     """H = T + V on a basis.
 
@@ -189,8 +259,9 @@ class Hamiltonian:
     mass : float or array_like or callable, optional
         Particle mass in the unit system's mass unit (default 1). On a FourierGrid an array on
         the grid (or a callable) gives the BenDaniel-Duke operator −(ħ²/2) d/dx (1/m) d/dx.
-    units : {"natural", "atomic", "semiconductor"}
-        "natural": ħ = 1; "atomic": hartree/bohr/m_e; "semiconductor": nm, meV, m_e, fs.
+    units : {"natural", "atomic", "semiconductor", "cold-atom"}
+        "natural": ħ = 1; "atomic": hartree/bohr/m_e; "semiconductor": nm, meV, m_e, fs;
+        "cold-atom": µm, ħ/ms (so ħ = 1), u, ms.
 
     Raises
     ------
@@ -667,51 +738,76 @@ class Heterostructure:
 
 @final
 class SplitStep:
-    """Split-step Fourier propagator (Feit, Fleck & Steiger 1982) on a FourierGrid.
+    """Split-step Fourier propagator (Feit, Fleck & Steiger 1982) on a FourierGrid or ProductGrid.
 
     Parameters
     ----------
-    grid : FourierGrid
-        Periodic grid.
+    grid : FourierGrid or ProductGrid
+        Periodic grid (1D, or 2D/3D).
     potential : callable or array_like
-        Static potential V0(x) (energy units).
+        Static potential V0 (energy units): on a FourierGrid f(x) or samples on ``grid.x``; on a
+        ProductGrid f(x, y[, z]), called once with broadcastable coordinate arrays
+        (``grid.mesh(sparse=True)``) and returning the grid's shape (or a shape that broadcasts
+        to it, or a number), or an array of exactly ``grid.shape``.
     mass : float
         Particle mass (> 0).
     dt : float
         Time step (time units; nonzero; > 0 in imaginary time).
     order : {2, 4}
         2: Strang splitting; 4: Yoshida (1990) composition of three Strang steps.
-    units : {"natural", "atomic", "semiconductor"}
-        Unit system.
+    units : {"natural", "atomic", "semiconductor", "cold-atom"}
+        Unit system ("cold-atom": µm, ms, u, energies in ħ/ms so that ħ = 1).
     drive : callable or array_like, optional
         f(t) of V(x,t) = V0(x) + f(t)·V1(x). A callable is evaluated (vectorised if it can be)
         at the sub-step midpoints of each run before the loop starts, keeping full order;
         an array gives f at the step midpoints t_n + dt/2 (second order in the drive for order=4).
         Both run at the same speed: the samples are taken before the GIL is released.
     drive_potential : callable or array_like, optional
-        V1(x) (energy per unit of f); e.g. ``lambda x: x`` for a uniform field.
+        V1 (energy per unit of f), like ``potential``; e.g. ``lambda x: x`` for a uniform field.
     absorber_width : float, optional
-        Width of a smooth cos^(1/8) mask at both box edges (absorption per step).
+        Width of a smooth cos^(1/8) mask at every face of the box (absorption per step); at most
+        half the shortest side.
     absorber_potential : callable or array_like, optional
-        Complex absorbing potential W(x) ≥ 0: V → V − iW.
+        Complex absorbing potential W ≥ 0: V → V − iW (like ``potential``).
     imaginary_time : bool
-        Propagate in imaginary time (use ``ground_states``).
+        Propagate in imaginary time (use ``ground_states`` or ``ground_state``).
+    nonlinearity : float
+        g of the Gross-Pitaevskii term: iħ∂ψ/∂t = [T + V + g|ψ|²]ψ with ψ normalised to
+        Σ|ψ|²dV = 1, so g includes the atom number (energy·length^d). Default 0 (linear).
+        The potential sub-steps take the exact phase exp(−i(V + g|ψ|²)w·dt/ħ), keeping order 2
+        (Strang) and 4 (Yoshida) for the nonlinear flow (Bao, Jaksch & Markowich 2003).
+        Coupling constants from the scattering length: see ``coupling_constant`` (3D
+        g = 4πħ²aN/m; quasi-2D g₂ = g₃/(√(2π) a_z); quasi-1D g₁ = g₃/(2π a_⊥²)).
+        With g ≠ 0, ``Run.energy`` is the energy functional ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV.
+
+    Raises
+    ------
+    ValueError
+        An argument outside its range, a potential of the wrong shape, g not finite.
+    TypeError
+        Wrong grid type, non-numeric input.
     """
 
-    def __new__(cls, grid: FourierGrid, potential: _PotentialLike, mass: float = 1.0, dt: Optional[float] = None,
-                 order: Optional[int] = None, units: str = "natural", *, drive: Union[Callable[..., npt.ArrayLike], npt.ArrayLike, None] = None,
-                 drive_potential: Optional[_PotentialLike] = None, absorber_width: Optional[float] = None,
-                 absorber_potential: Optional[_PotentialLike] = None, imaginary_time: bool = False) -> SplitStep: ...
+    def __new__(cls, grid: Union[FourierGrid, ProductGrid], potential: _GridPotentialLike, mass: float = 1.0,
+                 dt: Optional[float] = None, order: Optional[int] = None, units: str = "natural", *,
+                 drive: Union[Callable[..., npt.ArrayLike], npt.ArrayLike, None] = None,
+                 drive_potential: Optional[_GridPotentialLike] = None, absorber_width: Optional[float] = None,
+                 absorber_potential: Optional[_GridPotentialLike] = None, imaginary_time: bool = False,
+                 nonlinearity: float = 0.0) -> SplitStep: ...
     @property
     def mass(self) -> float:
         """Particle mass (mass unit of ``units``)."""
+    @property
+    def nonlinearity(self) -> float:
+        """g of the mean-field term g|ψ|² (0: linear)."""
     def run(self, psi0: npt.ArrayLike, steps: int, record_every: Optional[int] = None, progress: bool = False) -> Run:
         """Propagate ``psi0`` (samples on the grid) for ``steps`` steps.
 
         Parameters
         ----------
-        psi0 : array_like, shape (N,)
-            Initial state ψ(x_j); normalise it (Σ|ψ|²dx = 1) for normalised observables.
+        psi0 : array_like, shape (N,) on a FourierGrid, ``grid.shape`` on a ProductGrid
+            Initial state; normalise it (Σ|ψ|²dV = 1) for normalised observables, and always
+            with a nonlinearity (g multiplies |ψ|²).
         steps : int
             Number of time steps (≥ 0).
         record_every : int, optional
@@ -726,19 +822,27 @@ class SplitStep:
         Raises
         ------
         MemoryError
-            If the recorded snapshots would not fit in memory (raise ``record_every``).
+            If the recorded snapshots would not fit in memory (raise ``record_every``); refused
+            before any step is taken.
         """
     def run_many(self, psi0s: npt.ArrayLike, steps: int, record_every: Optional[int] = None) -> list[Run]:
-        """Propagate the rows of ``psi0s`` (shape (M, N)) in parallel across cores."""
+        """Propagate the states ``psi0s[i]`` (shape (M, *grid.shape)) in parallel across cores."""
     def ground_states(self, count: int, tol: float = 1e-9, max_steps: Optional[int] = None,
                       seed: Optional[int] = None) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.complex128]]:
         """Lowest ``count`` states by imaginary-time propagation with Gram-Schmidt (imaginary_time=True).
 
+        With a nonlinearity only ``count=1`` is accepted (ValueError otherwise): the normalised
+        gradient flow, refined to the minimum of the energy functional on the grid, and the
+        returned energy is the chemical potential μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (see ``ground_state``
+        for the energy functional too).
+
         Returns
         -------
         energies : ndarray, shape (count,)
-        states : ndarray of complex128, shape (count, N), Σ|ψ|²dx = 1
+        states : ndarray of complex128, shape (count, N) or (count, *grid.shape), Σ|ψ|²dV = 1
         """
+    def ground_state(self, tol: float = 1e-9, max_steps: Optional[int] = None, seed: Optional[int] = None) -> GroundState:
+        """The ground state by imaginary time (imaginary_time=True), with μ, E and its residual."""
     def drive_sample_times(self, steps: int) -> npt.NDArray[np.float64]:
         """Times at which a callable drive is evaluated for a run of ``steps`` steps."""
     @property
@@ -751,11 +855,43 @@ class SplitStep:
     def units(self) -> str:
         """Unit system name."""
     @property
-    def grid(self) -> FourierGrid:
+    def grid(self) -> Union[FourierGrid, ProductGrid]:
         """The grid."""
     @property
     def potential(self) -> npt.NDArray[np.float64]:
-        """Static potential on the grid."""
+        """Static potential on the grid (the grid's shape)."""
+
+@final
+class GroundState:
+    """A ground state from ``SplitStep.ground_state``."""
+
+    @property
+    def chemical_potential(self) -> float:
+        """μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (the lowest eigenvalue when g = 0)."""
+    @property
+    def energy(self) -> float:
+        """Energy functional E = ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV (per particle: ψ is normalised to 1)."""
+    @property
+    def state(self) -> npt.NDArray[np.complex128]:
+        """The state (real values, complex128), the grid's shape, Σ|ψ|²dV = 1, positive where it is largest."""
+    @property
+    def residual(self) -> float:
+        """‖H[ψ]ψ − μψ‖ in the discrete norm (Σ|·|²dV)^{1/2}."""
+    @property
+    def steps(self) -> int:
+        """Imaginary-time steps taken."""
+    @property
+    def rate(self) -> float:
+        """|dμ/dτ| at the last imaginary-time check."""
+    @property
+    def refine_iterations(self) -> int:
+        """Conjugate-gradient iterations of the refinement to the grid solution (0 when g = 0)."""
+    @property
+    def nonlinearity(self) -> float:
+        """g of the propagator."""
+    @property
+    def units(self) -> str:
+        """Unit system name."""
 
 @final
 class Run:
@@ -766,22 +902,34 @@ class Run:
         """Record times."""
     @property
     def states(self) -> npt.NDArray[np.complex128]:
-        """Recorded states ψ(x_j), shape (records, N)."""
+        """Recorded states, shape (records, N) on a FourierGrid, (records, *grid.shape) on a ProductGrid."""
     @property
     def norm(self) -> npt.NDArray[np.float64]:
-        """Σ|ψ|²dx per record."""
+        """Σ|ψ|²dV per record."""
     @property
     def mean_x(self) -> npt.NDArray[np.float64]:
         """⟨x⟩ per record (normalised by the norm)."""
     @property
+    def mean_y(self) -> Optional[npt.NDArray[np.float64]]:
+        """⟨y⟩ per record (None on a 1D grid)."""
+    @property
+    def mean_z(self) -> Optional[npt.NDArray[np.float64]]:
+        """⟨z⟩ per record (None on a 1D or 2D grid)."""
+    @property
     def mean_p(self) -> npt.NDArray[np.float64]:
-        """⟨p⟩ = ħ⟨k⟩ per record."""
+        """⟨p_x⟩ = ħ⟨k_x⟩ per record."""
+    @property
+    def mean_py(self) -> Optional[npt.NDArray[np.float64]]:
+        """⟨p_y⟩ per record (None on a 1D grid)."""
+    @property
+    def mean_pz(self) -> Optional[npt.NDArray[np.float64]]:
+        """⟨p_z⟩ per record (None on a 1D or 2D grid)."""
     @property
     def energy(self) -> npt.NDArray[np.float64]:
-        """⟨T⟩ + ⟨V(t)⟩ per record."""
+        """⟨T⟩ + ⟨V(t)⟩ per record; with a nonlinearity the energy functional ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV (all divided by the norm)."""
     @property
     def autocorrelation(self) -> npt.NDArray[np.complex128]:
-        """⟨ψ(0)|ψ(t)⟩ per record."""
+        """⟨ψ(0)|ψ(t)⟩ = Σ conj(ψ0)ψ dV per record."""
     @property
     def absorbed_norm(self) -> Optional[float]:
         """Fraction of the norm absorbed (None without an absorber)."""
@@ -792,11 +940,20 @@ class Run:
     def record_steps(self) -> list[int]:
         """Step index of each record."""
     @property
-    def grid(self) -> FourierGrid:
+    def grid(self) -> Union[FourierGrid, ProductGrid]:
         """The grid."""
     @property
+    def shape(self) -> list[int]:
+        """Points per axis of each recorded state."""
+    @property
     def x(self) -> npt.NDArray[np.float64]:
-        """Grid points."""
+        """Points of the x axis."""
+    @property
+    def y(self) -> Optional[npt.NDArray[np.float64]]:
+        """Points of the y axis (None on a 1D grid)."""
+    @property
+    def z(self) -> Optional[npt.NDArray[np.float64]]:
+        """Points of the z axis (None on a 1D or 2D grid)."""
     @property
     def units(self) -> str:
         """Unit system name."""
@@ -805,7 +962,41 @@ class Run:
     def __len__(self) -> int: ...
 
 def unit_constants(units: str) -> Tuple[float, float]:
-    """(ħ²/2m_e, ħ) of a unit system, in energy·length² and energy·time."""
+    """(ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time (m₁ the mass unit: m_e, or u for "cold-atom")."""
+
+def angular_frequency(frequency_hz: float, units: str = "cold-atom") -> float:
+    """ω = 2πf in radians per time unit of ``units`` for a frequency f in Hz (≥ 0; natural units have no time unit)."""
+
+def oscillator_length(mass: float, frequency_hz: float, units: str = "cold-atom") -> float:
+    """Harmonic-oscillator length √(ħ/(mω)) (length units) of a particle of ``mass`` in a trap of ``frequency_hz``."""
+
+def coupling_constant(scattering_length: float, atom_number: float, mass: float, dims: int = 3,
+                      confinement_hz: Optional[float] = None, units: str = "cold-atom") -> float:
+    """g of ``SplitStep(..., nonlinearity=g)`` for N atoms with s-wave scattering length a (ψ normalised to 1).
+
+    Parameters
+    ----------
+    scattering_length : float
+        a (length units of ``units``: µm for "cold-atom"); negative for attraction.
+    atom_number : float
+        N (> 0).
+    mass : float
+        Atom mass (mass unit: u for "cold-atom").
+    dims : {1, 2, 3}
+        3: g₃ = 4πħ²aN/m (Pitaevskii & Stringari 2003); 2: quasi-2D, g₂ = g₃/(√(2π) a_z)
+        (Petrov, Holzmann & Shlyapnikov 2000); 1: quasi-1D, g₁ = g₃/(2π a_⊥²) = 2ħω_⊥aN
+        (Olshanii 1998); a_z, a_⊥ = √(ħ/(mω)) of the tight confinement. Leading terms, valid
+        for a ≪ a_z, a_⊥.
+    confinement_hz : float, optional
+        Frequency (Hz) of the frozen direction(s): ω_z/2π (dims=2) or ω_⊥/2π (dims=1); None for dims=3.
+    units : str
+        Unit system (default "cold-atom").
+
+    Returns
+    -------
+    float
+        g in energy·length^dims.
+    """
 
 @final
 class Batch:
@@ -860,12 +1051,19 @@ def _layer_from_parts(thickness: float, band_edge: float, mass: float, doping: f
 def _spectrum_from_parts(hamiltonian: Hamiltonian, energies: npt.ArrayLike, vectors: npt.ArrayLike,
                          residuals: npt.ArrayLike, method: str, iterations: int,
                          errors: Optional[npt.ArrayLike]) -> Spectrum: ...
-def _split_step_from_parts(grid: FourierGrid, potential: _PotentialLike, mass: float, dt: float, order: int, units: str,
-                           drive: object, drive_potential: object, absorber_width: Optional[float],
-                           absorber_potential: object, imaginary_time: bool) -> SplitStep: ...
-def _run_from_parts(grid: FourierGrid, units: str, record_steps: Sequence[int], times: Sequence[float],
+def _split_step_from_parts(grid: Union[FourierGrid, ProductGrid], potential: _GridPotentialLike, mass: float, dt: float,
+                           order: int, units: str, drive: object, drive_potential: object,
+                           absorber_width: Optional[float], absorber_potential: object, imaginary_time: bool,
+                           nonlinearity: float = 0.0) -> SplitStep: ...
+def _run_from_parts(grid: Union[FourierGrid, ProductGrid], units: str, record_steps: Sequence[int], times: Sequence[float],
                     states: Sequence[complex], norm: Sequence[float], mean_x: Sequence[float], mean_p: Sequence[float],
                     energy: Sequence[float], autocorrelation: Sequence[complex], absorbed_norm: Optional[float],
-                    steps_done: int, cancelled: bool) -> Run: ...
+                    steps_done: int, cancelled: bool, mean_y: Optional[Sequence[float]] = None,
+                    mean_z: Optional[Sequence[float]] = None, mean_py: Optional[Sequence[float]] = None,
+                    mean_pz: Optional[Sequence[float]] = None) -> Run: ...
+def _ground_state_from_parts(shape: Sequence[int], units: str, nonlinearity: float, chemical_potential: float,
+                            energy: float, state: npt.ArrayLike, residual: float, steps: int, rate: float,
+                            refine_iterations: int) -> GroundState: ...
 def _batch_from_spectra(spectra: Sequence[Spectrum]) -> Batch: ...
 def _bare_fft_pair_seconds(n: int, reps: int) -> float: ...
+def _bare_grid_fft_pair_seconds(grid: Union[FourierGrid, ProductGrid], reps: int) -> float: ...

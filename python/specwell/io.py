@@ -25,7 +25,9 @@ def _basis_header(basis) -> dict:
         return {"kind": "FourierGrid", "start": basis.start, "stop": basis.stop, "points": basis.points}
     if isinstance(basis, _core.ElementBasis):
         return {"kind": "ElementBasis", "edges": [float(e) for e in basis.edges], "order": basis.order}
-    raise TypeError(f"`basis` must be a HermiteBasis, FourierGrid or ElementBasis; got {type(basis).__name__}")
+    if isinstance(basis, _core.ProductGrid):
+        return {"kind": "ProductGrid", "axes": [_basis_header(g) for g in basis.axes]}
+    raise TypeError(f"`basis` must be a HermiteBasis, FourierGrid, ElementBasis or ProductGrid; got {type(basis).__name__}")
 
 
 def _basis_from_header(h: dict):
@@ -35,6 +37,8 @@ def _basis_from_header(h: dict):
         return _core.FourierGrid(h["start"], h["stop"], h["points"])
     if h["kind"] == "ElementBasis":
         return _core.ElementBasis(h["edges"], h["order"])
+    if h["kind"] == "ProductGrid":
+        return _core.ProductGrid(*[_basis_from_header(a) for a in h["axes"]])
     raise ValueError(f"unknown basis kind {h['kind']!r} in file")
 
 
@@ -120,6 +124,10 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         arrays = dict(times=result.times, states=result.states, norm=result.norm, mean_x=result.mean_x,
                       mean_p=result.mean_p, energy=result.energy, autocorrelation=result.autocorrelation,
                       record_steps=np.asarray(result.record_steps, dtype=np.int64), x=result.x)
+        for name in _EXTRA_AXES:
+            value = getattr(result, name)
+            if value is not None:
+                arrays[name] = value
     else:
         raise TypeError(f"`result` must be a specwell result (Spectrum, Batch, Run); got {type(result).__name__}")
     np.savez(path, header=np.array(json.dumps(header)), **arrays)
@@ -147,12 +155,17 @@ def load(path: Union[str, os.PathLike]):
         return loaders(header, {k: f[k] for k in f.files if k != "header"})
 
 
+# Observables of the y and z axes of 2D/3D runs (absent from 1D files).
+_EXTRA_AXES = ("mean_y", "mean_z", "mean_py", "mean_pz")
+
+
 def _load_run(header: dict, f: dict):
     grid = _basis_from_header(header["basis"])
+    extra = [f.get(name) for name in _EXTRA_AXES]
     return _core._run_from_parts(grid, header["units"], [int(k) for k in f["record_steps"]], f["times"],
                                  f["states"].ravel(), f["norm"], f["mean_x"], f["mean_p"], f["energy"],
                                  f["autocorrelation"], header["absorbed_norm"], header["steps_done"],
-                                 header["cancelled"])
+                                 header["cancelled"], *extra)
 
 
 def _load_batch(header: dict, f: dict):

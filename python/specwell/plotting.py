@@ -7,7 +7,7 @@ from typing import Optional, Sequence
 import numpy as np
 
 __all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack", "plot_band_diagram",
-           "plot_stark_fan", "plot_self_consistent"]
+           "plot_stark_fan", "plot_self_consistent", "plot_density_slice", "plot_column_density"]
 
 
 def _axes(ax):
@@ -80,7 +80,8 @@ def plot_levels(spectrum, potential, x: Optional[Sequence[float]] = None, *, sca
 
 def _unit_labels(units: Optional[str]) -> tuple:
     """(length, energy, time) axis-label units of a unit system name ("" when dimensionless)."""
-    return {"semiconductor": ("nm", "meV", "fs"), "atomic": ("bohr", "hartree", "a.u.")}.get(units or "", ("", "", ""))
+    return {"semiconductor": ("nm", "meV", "fs"), "atomic": ("bohr", "hartree", "a.u."),
+            "cold-atom": ("µm", "ħ/ms", "ms")}.get(units or "", ("", "", ""))
 
 
 def _label(name: str, unit: str) -> str:
@@ -413,4 +414,159 @@ def plot_self_consistent(solution, ax=None, *, z: Optional[Sequence[float]] = No
         ax.specwell_density_axis = ax2
     else:
         ax.specwell_density_axis = None
+    return ax
+
+
+_AXES = ("x", "y", "z")
+
+
+def _density_on_grid(data, record: int, grid):
+    """(|ψ|² with the grid's shape, the grid, unit system) from a Run or from a state + grid."""
+    from specwell import _core
+
+    if isinstance(data, _core.Run):
+        grid = data.grid
+        states = np.asarray(data.states)
+        n = states.shape[0]
+        if not -n <= int(record) < n:
+            raise ValueError(f"`record` must be an integer in [{-n}, {n - 1}] (the run has {n} records); got {record}")
+        psi, units = states[int(record)], data.units
+    else:
+        if grid is None:
+            raise ValueError("`grid` must be given (a ProductGrid) when `data` is a state array instead of a Run")
+        psi, units = np.asarray(data), None
+    if not isinstance(grid, _core.ProductGrid):
+        raise ValueError(f"`data` must be a run (or state) on a 2D or 3D ProductGrid; got a grid of type "
+                         f"{type(grid).__name__} (use plot_density for 1D runs)")
+    if psi.shape != tuple(grid.shape):
+        raise ValueError(f"`data` must have the grid's shape {tuple(grid.shape)}; got {psi.shape}")
+    return np.abs(psi) ** 2, grid, units
+
+
+def _axis_index(axis, ndim: int) -> int:
+    names = _AXES[:ndim]
+    if axis in names:
+        return names.index(axis)
+    if isinstance(axis, (int, np.integer)) and 0 <= int(axis) < ndim:
+        return int(axis)
+    raise ValueError(f"`axis` must be one of {', '.join(repr(a) for a in names)} (or 0..{ndim - 1}); got {axis!r}")
+
+
+def _draw(ax, data: np.ndarray, axes_points, names, units, *, log, vmin, cmap, colorbar, label):
+    lu = _unit_labels(units)[0]
+    if log:
+        top = float(np.max(data)) if data.size else 1.0
+        shown = np.log10(np.maximum(data, top * 1e-300 if top > 0 else 1e-300))
+        lo = np.log10(top) - 6.0 if vmin is None and top > 0 else vmin
+        label = f"log10 {label}"
+    else:
+        shown, lo = data, (0.0 if vmin is None else vmin)
+    if data.ndim == 1:
+        ax.plot(axes_points[0], shown, lw=1.4)
+        ax.set_xlabel(_label(names[0], lu))
+        ax.set_ylabel(label)
+        return ax
+    (xa, xb) = axes_points
+    dx = xa[1] - xa[0] if len(xa) > 1 else 1.0
+    dy = xb[1] - xb[0] if len(xb) > 1 else 1.0
+    img = ax.imshow(shown.T, origin="lower", aspect="auto", cmap=cmap, vmin=lo, interpolation="nearest",
+                    extent=(xa[0] - dx / 2, xa[-1] + dx / 2, xb[0] - dy / 2, xb[-1] + dy / 2))
+    if colorbar:
+        ax.figure.colorbar(img, ax=ax, label=label)
+    ax.set_xlabel(_label(names[0], lu))
+    ax.set_ylabel(_label(names[1], lu))
+    return ax
+
+
+def plot_density_slice(data, record: int = -1, *, axis="z", position: Optional[float] = None, grid=None, ax=None,
+                       log: bool = False, vmin: Optional[float] = None, cmap: str = "viridis", colorbar: bool = True):
+    """|ψ|² of a 2D/3D run on the plane (3D) or line (2D) normal to ``axis`` through ``position``.
+
+    Parameters
+    ----------
+    data : Run or ndarray
+        A run on a ProductGrid (record ``record`` is drawn), or one state of the grid's shape
+        (then give ``grid``).
+    record : int
+        Record index (negative counts from the end).
+    axis : {"x", "y", "z"} or int
+        The axis the slice is normal to (default "z"; on a 2D grid "x" or "y").
+    position : float, optional
+        Coordinate of the slice on ``axis`` (length units): the nearest grid point is used.
+        Default: the grid point nearest the density's centre ⟨axis⟩.
+    grid : ProductGrid, optional
+        The grid of a state array.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    log : bool
+        Colour by (or plot) log10 |ψ|².
+    vmin : float, optional
+        Lower colour limit (of log10 |ψ|² when ``log``; default 6 decades below the maximum).
+    cmap : str
+        Matplotlib colour map (images only).
+    colorbar : bool
+        Add a colour bar (images only).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        An image over the two other axes (3D) or a curve along the other axis (2D); the slice
+        coordinate used is stored as ``ax.specwell_slice_position``.
+    """
+    ax = _axes(ax)
+    rho, grid, units = _density_on_grid(data, record, grid)
+    ndim = rho.ndim
+    if axis == "z" and ndim == 2:
+        axis = "y"
+    a = _axis_index(axis, ndim)
+    coords = np.asarray(grid.axes[a].x)
+    if position is None:
+        weights = rho.sum(axis=tuple(i for i in range(ndim) if i != a))
+        position = float(np.sum(weights * coords) / np.sum(weights))
+    if not np.isfinite(position):
+        raise ValueError(f"`position` must be a finite coordinate; got {position}")
+    j = int(np.argmin(np.abs(coords - position)))
+    cut = np.take(rho, j, axis=a)
+    rest = [i for i in range(ndim) if i != a]
+    names = [_AXES[i] for i in rest]
+    _draw(ax, cut, [np.asarray(grid.axes[i].x) for i in rest], names, units, log=log, vmin=vmin, cmap=cmap,
+          colorbar=colorbar, label="|ψ|²")
+    ax.set_title(f"{_AXES[a]} = {coords[j]:.4g}")
+    ax.specwell_slice_position = float(coords[j])
+    return ax
+
+
+def plot_column_density(data, record: int = -1, *, axis="z", grid=None, ax=None, log: bool = False,
+                        vmin: Optional[float] = None, cmap: str = "viridis", colorbar: bool = True):
+    """Column density ∫|ψ|² d(axis) of a 2D/3D run (an absorption image along ``axis``).
+
+    Parameters
+    ----------
+    data : Run or ndarray
+        A run on a ProductGrid (record ``record``), or one state of the grid's shape (give ``grid``).
+    record : int
+        Record index (negative counts from the end).
+    axis : {"x", "y", "z"} or int
+        Integration (line-of-sight) axis; default "z" ("y" on a 2D grid).
+    grid : ProductGrid, optional
+        The grid of a state array.
+    ax, log, vmin, cmap, colorbar
+        As for :func:`plot_density_slice`.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        An image over the two other axes (3D) or a curve along the other axis (2D): the
+        discrete column density Σ_j |ψ|² d(axis) (length^{1−d}), which integrates to the norm.
+    """
+    ax = _axes(ax)
+    rho, grid, units = _density_on_grid(data, record, grid)
+    ndim = rho.ndim
+    if axis == "z" and ndim == 2:
+        axis = "y"
+    a = _axis_index(axis, ndim)
+    column = rho.sum(axis=a) * grid.axes[a].dx
+    rest = [i for i in range(ndim) if i != a]
+    _draw(ax, column, [np.asarray(grid.axes[i].x) for i in rest], [_AXES[i] for i in rest], units, log=log,
+          vmin=vmin, cmap=cmap, colorbar=colorbar, label=f"∫|ψ|² d{_AXES[a]}")
     return ax

@@ -1,7 +1,8 @@
 """Initial states for propagation and spectra from autocorrelation functions.
 
 All states are complex128 samples ψ(x_j) on a FourierGrid, normalised so that
-Σ|ψ_j|² dx = 1 (the discrete form of ∫|ψ|² dx = 1).
+Σ|ψ_j|² dx = 1 (the discrete form of ∫|ψ|² dx = 1), or on a ProductGrid, arrays of
+the grid's shape normalised so that Σ|ψ|² dV = 1.
 """
 
 from __future__ import annotations
@@ -28,27 +29,65 @@ def _normalise(psi: np.ndarray, dx: float, name: str) -> np.ndarray:
     return psi / norm
 
 
-def gaussian_packet(grid, x0: float, p0: float = 0.0, sigma: float = 1.0, units: str = "natural") -> np.ndarray:
+def _per_axis(value, ndim: int, name: str) -> np.ndarray:
+    """A scalar or a sequence of `ndim` finite numbers as a float array of length `ndim`."""
+    arr = np.atleast_1d(np.asarray(value, dtype=float))
+    if arr.ndim != 1 or (arr.size != 1 and arr.size != ndim):
+        raise ValueError(f"`{name}` must be a number or a sequence of {ndim} numbers (one per axis); got {value!r}")
+    if not np.all(np.isfinite(arr)):
+        raise ValueError(f"`{name}` must contain only finite numbers; got {value!r}")
+    return np.broadcast_to(arr, (ndim,)).astype(float)
+
+
+def gaussian_packet(grid, x0, p0=0.0, sigma=1.0, units: str = "natural") -> np.ndarray:
     """Gaussian packet ψ(x) ∝ exp(−(x − x0)²/(4σ²) + i p0 (x − x0)/ħ) on a grid.
 
     Parameters
     ----------
-    grid : FourierGrid
-        The grid.
-    x0 : float
-        Centre ⟨x⟩ (length units); must lie inside [grid.start, grid.stop).
-    p0 : float
-        Mean momentum ⟨p⟩ (energy·time/length in the unit system; ħk in natural units).
-    sigma : float
-        Position standard deviation σ (> 0, length units); |ψ|² has width σ.
-    units : {"natural", "atomic", "semiconductor"}
+    grid : FourierGrid or ProductGrid
+        The grid. On a ProductGrid the packet is the product of one such Gaussian per axis.
+    x0 : float, or sequence of float (one per axis of a ProductGrid)
+        Centre ⟨x⟩ (length units); must lie inside the grid box on every axis. On a
+        ProductGrid give one value per axis.
+    p0 : float or sequence of float
+        Mean momentum ⟨p⟩ (energy·time/length in the unit system; ħk in natural units);
+        a single number applies to every axis.
+    sigma : float or sequence of float
+        Position standard deviation σ (> 0, length units); |ψ|² has width σ along each axis.
+    units : {"natural", "atomic", "semiconductor", "cold-atom"}
         Unit system (fixes ħ).
 
     Returns
     -------
-    ndarray of complex128, shape (grid.points,)
+    ndarray of complex128, shape ``(grid.points,)`` on a FourierGrid, ``grid.shape`` on a
+    ProductGrid; normalised to Σ|ψ|² dx = 1 (Σ|ψ|² dV = 1).
     """
+    from specwell import _core
+
+    if isinstance(grid, _core.ProductGrid):
+        ndim = grid.ndim
+        if np.ndim(x0) != 1 or len(x0) != ndim:
+            raise ValueError(f"`x0` must be a sequence of {ndim} numbers (one centre per axis) on a {ndim}D ProductGrid; "
+                             f"got {x0!r}")
+        c = _per_axis(x0, ndim, "x0")
+        p = _per_axis(p0, ndim, "p0")
+        s = _per_axis(sigma, ndim, "sigma")
+        if np.any(s <= 0):
+            raise ValueError(f"`sigma` must be > 0 on every axis; got {sigma!r}")
+        hbar = _hbar(units)
+        psi = np.ones(tuple(grid.shape), dtype=np.complex128)
+        for a, (ax, ca, pa, sa) in enumerate(zip(grid.axes, c, p, s)):
+            if not ax.start <= ca < ax.stop:
+                raise ValueError(f"`x0` must lie in the grid box: axis {a} is [{ax.start}, {ax.stop}); got {ca}")
+            x = ax.x
+            f = np.exp(-((x - ca) ** 2) / (4.0 * sa**2) + 1j * pa * (x - ca) / hbar)
+            shape = [1] * ndim
+            shape[a] = len(x)
+            psi = psi * f.reshape(shape)
+        return _normalise(psi, grid.dV, "sigma")
     for name, v in (("x0", x0), ("p0", p0), ("sigma", sigma)):
+        if np.ndim(v) != 0:
+            raise ValueError(f"`{name}` must be a single number on a FourierGrid; got {v!r}")
         if not np.isfinite(v):
             raise ValueError(f"`{name}` must be a finite number; got {v}")
     if sigma <= 0:

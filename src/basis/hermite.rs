@@ -63,6 +63,15 @@ impl HermiteBasis {
         let gh = gauss_hermite(m);
         let nodes = gh.nodes;
         let x: Vec<f64> = nodes.iter().map(|&xi| center + length * xi).collect();
+        // length ≤ f64::MAX can still overflow at the outer nodes (|ξ| up to ~√(2m)).
+        if x.iter().any(|v| !v.is_finite()) {
+            let xi_max = nodes.iter().fold(0.0_f64, |a, &b| a.max(b.abs()));
+            return Err(InputError::range(
+                "length",
+                format!("a finite number > 0 with |center| + length·{xi_max:.3} finite (the outermost node)"),
+                length,
+            ));
+        }
         // Column k of Φ: ψ_0..ψ_{N−1} at ξ_k times sqrt(λ_k); columns are independent
         // (in parallel only when the table is large enough to pay for the threads).
         let mut table = vec![0.0; size * m];
@@ -270,5 +279,8 @@ mod tests {
         assert!(HermiteBasis::new(4, 0.0, -1.0, None).is_err());
         assert!(HermiteBasis::new(4, f64::INFINITY, 1.0, None).is_err());
         assert!(HermiteBasis::new(4, 0.0, 1.0, Some(4)).is_err());
+        // finite length whose outer nodes overflow (found by tests/test_fuzz_inputs.py)
+        let e = HermiteBasis::new(4, 0.0, 1e308, Some(13)).unwrap_err();
+        assert!(e.to_string().contains("`length`"), "{e}");
     }
 }

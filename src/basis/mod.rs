@@ -13,6 +13,9 @@
 //!   heterostructure (generalized problem A c = E B c; coefficients B-orthonormal).
 //! * [`ElementBasis`]: Legendre spectral elements (Lagrange polynomials on GLL nodes, C0,
 //!   Dirichlet ends); coefficients are the nodal values, B-orthonormal in GLL quadrature.
+//! * [`ProductGrid`]: the tensor product of two or three Fourier grids (2D and 3D boxes).
+//!   It is not a [`Basis`] (no eigen solver runs on it); it and [`FourierGrid`] are the
+//!   [`PeriodicGrid`]s that split-step propagation runs on.
 
 pub mod elements;
 pub mod fourier;
@@ -20,11 +23,15 @@ pub mod gll;
 pub mod hermite;
 pub mod hermite_math;
 pub mod layered;
+pub mod periodic;
+pub mod product;
 
 pub use elements::ElementBasis;
 pub use fourier::FourierGrid;
 pub use hermite::HermiteBasis;
 pub use layered::LayeredBasis;
+pub use periodic::PeriodicGrid;
+pub use product::ProductGrid;
 
 use crate::error::InputError;
 

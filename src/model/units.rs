@@ -11,6 +11,12 @@
 //! | `Natural` | 1 | 1 | 1 | 1 | 1/2 | 1 |
 //! | `Atomic` | bohr | hartree | m_e | ħ/E_h | 1/2 | 1 |
 //! | `Semiconductor` | nm | meV | m_e | fs | 38.0998… meV nm² | 658.2119… meV fs |
+//! | `ColdAtom` | µm | ħ/ms | u (dalton) | ms | 31.7530… (ħ/ms) µm² | 1 |
+//!
+//! For `ColdAtom` the mass unit is the atomic mass constant u (so the first column is
+//! ħ²/(2u)) and the energy unit is ħ per millisecond (1.054…e-31 J, h × 159.15… Hz), which
+//! makes ħ = 1: a harmonic trap of frequency f (Hz) is V = ½ m ω² x² with
+//! ω = 2π f · 1e-3 rad/ms ([`Units::angular_frequency`]).
 
 use crate::error::InputError;
 
@@ -29,6 +35,11 @@ pub mod codata2022 {
     pub const HARTREE: f64 = 4.359_744_722_206e-18;
     /// Bohr radius, m.
     pub const BOHR_RADIUS: f64 = 5.291_772_105_44e-11;
+    /// Atomic mass constant u = m(¹²C)/12 (dalton), kg (CODATA 2022, recalled from memory:
+    /// 1.660 539 068 92(52)e-27 kg).
+    pub const ATOMIC_MASS_CONSTANT: f64 = 1.660_539_068_92e-27;
+    /// Atomic unit of time ħ/E_h, s.
+    pub const ATOMIC_TIME: f64 = HBAR / HARTREE;
 }
 
 /// A unit system. Parsed from a string only at the Python edge.
@@ -41,13 +52,20 @@ pub enum Units {
     Atomic,
     /// Lengths in nm, energies in meV, masses in m_e, times in fs.
     Semiconductor,
+    /// Cold atoms: lengths in µm, times in ms, masses in u (dalton), energies in ħ/ms
+    /// (so ħ = 1); trap frequencies from Hz with [`Units::angular_frequency`].
+    ColdAtom,
 }
 
 impl Units {
     /// Option strings and their systems, in the order listed in error messages: the one
     /// place the names live (parsing, `name()` and the Python `UNITS` list read it).
-    pub const TABLE: [(&'static str, Units); 3] =
-        [("natural", Units::Natural), ("atomic", Units::Atomic), ("semiconductor", Units::Semiconductor)];
+    pub const TABLE: [(&'static str, Units); 4] = [
+        ("natural", Units::Natural),
+        ("atomic", Units::Atomic),
+        ("semiconductor", Units::Semiconductor),
+        ("cold-atom", Units::ColdAtom),
+    ];
 
     /// Parse an option string (exact, lower case).
     pub fn parse(s: &str) -> Result<Self, InputError> {
@@ -59,7 +77,7 @@ impl Units {
         crate::error::choice_name(&Self::TABLE, self)
     }
 
-    /// ħ²/(2 m_e) in energy·length² of this system.
+    /// ħ²/(2 m₁) in energy·length² of this system, m₁ its mass unit (m_e; u for `ColdAtom`).
     pub fn hbar2_over_2me(self) -> f64 {
         use codata2022::*;
         match self {
@@ -68,6 +86,8 @@ impl Units {
                 // J m² -> meV nm²: divide by (e * 1e-3) and multiply by 1e18.
                 HBAR * HBAR / (2.0 * ELECTRON_MASS) / (ELEMENTARY_CHARGE * 1e-3) * 1e18
             }
+            // J m² -> (ħ/ms) µm²: divide by ħ/1e-3 s and multiply by 1e12.
+            Units::ColdAtom => HBAR * HBAR / (2.0 * ATOMIC_MASS_CONSTANT) / (HBAR / 1e-3) * 1e12,
         }
     }
 
@@ -78,7 +98,31 @@ impl Units {
             Units::Natural | Units::Atomic => 1.0,
             // J s -> meV fs
             Units::Semiconductor => HBAR / (ELEMENTARY_CHARGE * 1e-3) * 1e15,
+            // the energy unit is ħ/ms
+            Units::ColdAtom => 1.0,
         }
+    }
+
+    /// Time of one unit of this system in seconds (natural units: `None`).
+    pub fn time_unit_second(self) -> Option<f64> {
+        match self {
+            Units::Natural => None,
+            Units::Atomic => Some(codata2022::ATOMIC_TIME),
+            Units::Semiconductor => Some(1e-15),
+            Units::ColdAtom => Some(1e-3),
+        }
+    }
+
+    /// ω = 2π f in radians per time unit of this system, for a frequency f in Hz
+    /// (`frequency_hz` finite and ≥ 0; natural units have no time unit: an error).
+    pub fn angular_frequency(self, frequency_hz: f64) -> Result<f64, InputError> {
+        if !(frequency_hz.is_finite() && frequency_hz >= 0.0) {
+            return Err(InputError::range("frequency_hz", "a finite frequency >= 0 (Hz)", frequency_hz));
+        }
+        let t = self.time_unit_second().ok_or_else(|| {
+            InputError::range("units", "a unit system with a time unit (natural units have none: give ω directly)", "\"natural\"")
+        })?;
+        Ok(2.0 * std::f64::consts::PI * frequency_hz * t)
     }
 
     /// Energy of one unit of this system in joules (natural units: `None`).
@@ -87,6 +131,7 @@ impl Units {
             Units::Natural => None,
             Units::Atomic => Some(codata2022::HARTREE),
             Units::Semiconductor => Some(codata2022::ELEMENTARY_CHARGE * 1e-3),
+            Units::ColdAtom => Some(codata2022::HBAR / 1e-3),
         }
     }
 
@@ -96,6 +141,7 @@ impl Units {
             Units::Natural => None,
             Units::Atomic => Some(codata2022::BOHR_RADIUS),
             Units::Semiconductor => Some(1e-9),
+            Units::ColdAtom => Some(1e-6),
         }
     }
 
@@ -105,6 +151,7 @@ impl Units {
             Units::Natural => ["", "", "", ""],
             Units::Atomic => ["bohr", "Ha", "m_e", "ħ/Ha"],
             Units::Semiconductor => ["nm", "meV", "m_e", "fs"],
+            Units::ColdAtom => ["µm", "ħ/ms", "u", "ms"],
         }
     }
 
@@ -123,6 +170,20 @@ mod tests {
         // Recalled from memory (CODATA 2018 derived; CODATA 2022 moves them by ~1e-9): ħ²/2m_e = 38.0998 meV nm², ħ = 658.2120 meV fs.
         assert!((Units::Semiconductor.hbar2_over_2me() - 38.0998).abs() < 1e-3);
         assert!((Units::Semiconductor.hbar() - 658.2120).abs() < 1e-3);
+    }
+
+    #[test]
+    fn cold_atom_constants_match_recalled_values() {
+        // Recalled from memory: ħ = 1.054571817e-34 J s, u = 1.66053906892e-27 kg (CODATA 2022),
+        // so ħ·1e-3/(2u·1e-12) = 31.7530 (ħ/ms) µm²; for ⁸⁷Rb (86.909 u) ħ/m = 0.7307 µm²/ms.
+        assert!((Units::ColdAtom.hbar2_over_2me() - 31.7530).abs() < 1e-3);
+        assert!((2.0 * Units::ColdAtom.kinetic_prefactor(86.909) - 0.7307).abs() < 1e-3);
+        assert_eq!(Units::parse("cold-atom").unwrap(), Units::ColdAtom);
+        // 100 Hz is 2π·0.1 rad/ms
+        let w = Units::ColdAtom.angular_frequency(100.0).unwrap();
+        assert!((w - 0.2 * std::f64::consts::PI).abs() < 1e-15);
+        assert!(Units::Natural.angular_frequency(1.0).is_err());
+        assert!(Units::ColdAtom.angular_frequency(-1.0).is_err());
     }
 
     #[test]

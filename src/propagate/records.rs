@@ -12,18 +12,22 @@ use super::kernels::sum_sq;
 use super::{Kick, SplitStep};
 use crate::error::{check_memory, InputError, NumericalError, Result};
 
-/// Expectation values of one state.
+/// Expectation values of one state. Positions and momenta per axis (x, y, z; entries of
+/// absent axes are 0), all normalised by the norm.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Observables {
-    /// Σ|ψ_j|² dx.
+    /// Σ|ψ_j|² dV.
     pub norm: f64,
-    /// ⟨x⟩ (length), positions taken in [start, start + n·dx). Normalised by the norm.
-    pub mean_x: f64,
-    /// ⟨p⟩ = ħ⟨k⟩ (energy·time/length) from the FFT. Normalised by the norm.
-    pub mean_p: f64,
-    /// ⟨T⟩ + ⟨V(t)⟩ (energy) with the real potential (a CAP is not included).
-    /// Normalised by the norm.
+    /// ⟨x⟩, ⟨y⟩, ⟨z⟩ (length), positions taken in [start, start + n·dx) on each axis.
+    pub position: [f64; 3],
+    /// ⟨p_x⟩, ⟨p_y⟩, ⟨p_z⟩ = ħ⟨k⟩ (energy·time/length) from the FFT.
+    pub momentum: [f64; 3],
+    /// ⟨T⟩ + ⟨V(t)⟩ + (g/2)Σ|ψ|⁴ dV (energy), divided by the norm, with the real potential
+    /// (a CAP is not included); with g = 0 the linear ⟨H⟩.
     pub energy: f64,
+    /// (g/2)Σ|ψ|⁴ dV divided by the norm (0 when g = 0): for a normalised stationary state
+    /// the chemical potential is μ = energy + interaction.
+    pub interaction: f64,
 }
 
 /// Result of [`SplitStep::run`]. Record 0 is the initial state at t0, then one record
@@ -31,25 +35,35 @@ pub struct Observables {
 /// interval is shorter when `steps` is not a multiple of `record_every`).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Run {
-    /// Grid size (row length of `states`).
+    /// Grid size: points per state (row length of `states`).
     pub n: usize,
+    /// Points per axis (row-major layout of each recorded state).
+    pub shape: Vec<usize>,
     /// Step count of each record.
     pub record_steps: Vec<usize>,
     /// Time of each record, t0 + step·dt (imaginary time τ in imaginary-time runs).
     pub times: Vec<f64>,
     /// Recorded states, n_records × n, row-major.
     pub states: Vec<Complex64>,
-    /// Σ|ψ|² dx per record.
+    /// Σ|ψ|² dV per record.
     pub norm: Vec<f64>,
     /// ⟨x⟩ per record (normalised by the norm).
     pub mean_x: Vec<f64>,
-    /// ħ⟨k⟩ per record (normalised by the norm).
+    /// ⟨y⟩ per record (empty on a 1D grid).
+    pub mean_y: Vec<f64>,
+    /// ⟨z⟩ per record (empty on a 1D or 2D grid).
+    pub mean_z: Vec<f64>,
+    /// ħ⟨k_x⟩ per record (normalised by the norm).
     pub mean_p: Vec<f64>,
-    /// ⟨T⟩ + ⟨V(t)⟩ per record (normalised by the norm; with a drive, f at the record
-    /// time is linearly interpolated between the adjacent samples, extrapolated at the
-    /// ends of the sample array).
+    /// ħ⟨k_y⟩ per record (empty on a 1D grid).
+    pub mean_py: Vec<f64>,
+    /// ħ⟨k_z⟩ per record (empty on a 1D or 2D grid).
+    pub mean_pz: Vec<f64>,
+    /// ⟨T⟩ + ⟨V(t)⟩ (+ (g/2)Σ|ψ|⁴ dV with a nonlinearity) per record (normalised by the
+    /// norm; with a drive, f at the record time is linearly interpolated between the
+    /// adjacent samples, extrapolated at the ends of the sample array).
     pub energy: Vec<f64>,
-    /// ⟨ψ(0)|ψ(t)⟩ = Σ conj(ψ0_j) ψ_j dx per record (not normalised).
+    /// ⟨ψ(0)|ψ(t)⟩ = Σ conj(ψ0_j) ψ_j dV per record (not normalised).
     pub autocorrelation: Vec<Complex64>,
     /// With an absorber: 1 − norm(end)/norm(0), the fraction of the norm absorbed.
     pub absorbed_norm: Option<f64>,
@@ -96,30 +110,75 @@ pub(super) fn check_state(argument: &str, psi: &[Complex64], n: usize, offset: u
 
 impl SplitStep {
     pub(super) fn observe(&self, psi: &[Complex64], work: &mut [Complex64], scratch: &mut [Complex64], fnow: f64) -> Observables {
-        let (mut s0, mut sx, mut sv, mut sv1) = (0.0, 0.0, 0.0, 0.0);
-        for ((z, &x), &v) in psi.iter().zip(self.grid().x()).zip(&self.options.potential) {
-            let p = z.norm_sqr();
-            s0 += p;
-            sx += x * p;
-            sv += v * p;
+        let grid = &*self.options.grid;
+        let nd = self.shape.len();
+        let (nl, _) = self.lines();
+        let g = self.options.nonlinearity;
+        let x_last = grid.axis(nd - 1).x();
+        let (mut s0, mut sv, mut sv1, mut s4) = (0.0, 0.0, 0.0, 0.0);
+        let mut sa = [0.0; 3];
+        for (line, (chunk, vs)) in psi.chunks(nl).zip(self.options.potential.chunks(nl)).enumerate() {
+            let (mut l0, mut lx) = (0.0, 0.0);
+            for ((z, &x), &v) in chunk.iter().zip(x_last).zip(vs) {
+                let p = z.norm_sqr();
+                l0 += p;
+                lx += x * p;
+                sv += v * p;
+            }
+            if g != 0.0 {
+                s4 += chunk.iter().map(|z| z.norm_sqr() * z.norm_sqr()).sum::<f64>();
+            }
+            s0 += l0;
+            sa[nd - 1] += lx;
+            let (i, j) = self.line_outer(line);
+            if nd >= 2 {
+                sa[0] += grid.axis(0).x()[i] * l0;
+            }
+            if nd == 3 {
+                sa[1] += grid.axis(1).x()[j] * l0;
+            }
         }
         if let Some(d) = &self.drive {
             sv1 = psi.iter().zip(&d.v1).map(|(z, v)| z.norm_sqr() * v).sum();
         }
         work.copy_from_slice(psi);
-        self.grid().forward().process_with_scratch(work, scratch);
-        let (mut k0, mut k1, mut k2) = (0.0, 0.0, 0.0);
-        for (z, &kk) in work.iter().zip(self.grid().k()) {
-            let p = z.norm_sqr();
-            k0 += p;
-            k1 += kk * p;
-            k2 += kk * kk * p;
+        grid.forward(work, scratch);
+        let k_last = grid.axis(nd - 1).k();
+        let (mut k0, mut k2) = (0.0, 0.0);
+        let mut ka = [0.0; 3];
+        for (line, chunk) in work.chunks(nl).enumerate() {
+            let (mut l0, mut l1, mut l2) = (0.0, 0.0, 0.0);
+            for (z, &kk) in chunk.iter().zip(k_last) {
+                let p = z.norm_sqr();
+                l0 += p;
+                l1 += kk * p;
+                l2 += kk * kk * p;
+            }
+            k0 += l0;
+            ka[nd - 1] += l1;
+            k2 += l2;
+            if nd >= 2 {
+                let (i, j) = self.line_outer(line);
+                let kx = grid.axis(0).k()[i];
+                let ky = if nd == 3 { grid.axis(1).k()[j] } else { 0.0 };
+                ka[0] += kx * l0;
+                if nd == 3 {
+                    ka[1] += ky * l0;
+                }
+                k2 += (kx * kx + ky * ky) * l0;
+            }
+        }
+        let interaction = if g != 0.0 { 0.5 * g * s4 / s0 } else { 0.0 };
+        let mut energy = self.c * k2 / k0 + (sv + fnow * sv1) / s0;
+        if g != 0.0 {
+            energy += interaction;
         }
         Observables {
-            norm: s0 * self.grid().dx(),
-            mean_x: sx / s0,
-            mean_p: self.hbar * k1 / k0,
-            energy: self.c * k2 / k0 + (sv + fnow * sv1) / s0,
+            norm: s0 * grid.cell_volume(),
+            position: [sa[0] / s0, sa[1] / s0, sa[2] / s0],
+            momentum: [self.hbar * ka[0] / k0, self.hbar * ka[1] / k0, self.hbar * ka[2] / k0],
+            energy,
+            interaction,
         }
     }
 
@@ -164,7 +223,7 @@ impl SplitStep {
     }
 
     pub(super) fn renormalise(&self, psi: &mut [Complex64]) -> Result<()> {
-        let nrm = sum_sq(psi) * self.grid().dx();
+        let nrm = sum_sq(psi) * self.grid().cell_volume();
         if !(nrm.is_finite() && nrm > 0.0) {
             return Err(NumericalError::Diverged(format!(
                 "imaginary-time propagation: the state norm became {nrm}; use a smaller dt or a better start state"
@@ -216,14 +275,21 @@ impl SplitStep {
         };
         let mut states: Vec<Complex64> = Vec::new();
         states.try_reserve_exact(n_rec.saturating_mul(n)).map_err(too_large)?;
+        let nd = self.shape.len();
+        let per_axis = |a: usize| if nd > a { Vec::with_capacity(n_rec) } else { Vec::new() };
         let mut run = Run {
             n,
+            shape: self.shape.clone(),
             record_steps: Vec::with_capacity(n_rec),
             times: Vec::with_capacity(n_rec),
             states,
             norm: Vec::with_capacity(n_rec),
             mean_x: Vec::with_capacity(n_rec),
+            mean_y: per_axis(1),
+            mean_z: per_axis(2),
             mean_p: Vec::with_capacity(n_rec),
+            mean_py: per_axis(1),
+            mean_pz: per_axis(2),
             energy: Vec::with_capacity(n_rec),
             autocorrelation: Vec::with_capacity(n_rec),
             absorbed_norm: None,
@@ -241,13 +307,21 @@ impl SplitStep {
 
         let record = |run: &mut Run, psi: &[Complex64], work: &mut [Complex64], scratch: &mut [Complex64], m: usize| {
             let o = self.observe(psi, work, scratch, self.drive_value_at(m));
-            let ac: Complex64 = init.iter().zip(psi).map(|(a, b)| a.conj() * b).sum::<Complex64>() * self.grid().dx();
+            let ac: Complex64 = init.iter().zip(psi).map(|(a, b)| a.conj() * b).sum::<Complex64>() * self.grid().cell_volume();
             run.record_steps.push(m);
             run.times.push(self.options.t0 + m as f64 * self.options.dt);
             run.states.extend_from_slice(psi);
             run.norm.push(o.norm);
-            run.mean_x.push(o.mean_x);
-            run.mean_p.push(o.mean_p);
+            run.mean_x.push(o.position[0]);
+            run.mean_p.push(o.momentum[0]);
+            if nd >= 2 {
+                run.mean_y.push(o.position[1]);
+                run.mean_py.push(o.momentum[1]);
+            }
+            if nd == 3 {
+                run.mean_z.push(o.position[2]);
+                run.mean_pz.push(o.momentum[2]);
+            }
             run.energy.push(o.energy);
             run.autocorrelation.push(ac);
         };

@@ -148,3 +148,21 @@ pub fn seed_arg(obj: Option<&Bound<'_, PyAny>>) -> PyResult<u64> {
         Some(o) => Ok(to_usize(o, "seed", 0, i64::MAX as usize)? as u64),
     }
 }
+
+/// A real array-like of any shape as (shape, float64 data in C order).
+pub fn real_nd(obj: &Bound<'_, PyAny>, name: &str) -> PyResult<(Vec<usize>, Vec<f64>)> {
+    let (arr, _) = as_ndarray(obj, name, false)?;
+    let a: PyArrayLikeDyn<'_, f64, AllowTypeChange> = arr.extract().map_err(|e| PyTypeError::new_err(format!("`{name}`: {e}")))?;
+    let shape = a.shape().to_vec();
+    let data = match a.as_slice() {
+        Ok(sl) => sl.to_vec(),
+        Err(_) => a.as_array().iter().copied().collect(),
+    };
+    Ok((shape, data))
+}
+
+/// A flat C-order vector as a numpy array of `shape` (a copy; the length must match).
+pub fn shaped_array<'py, T: numpy::Element + Clone>(py: Python<'py>, shape: &[usize], data: Vec<T>) -> PyResult<Bound<'py, numpy::PyArrayDyn<T>>> {
+    let a = ndarray::ArrayD::from_shape_vec(ndarray::IxDyn(shape), data).map_err(|e| PyValueError::new_err(e.to_string()))?;
+    Ok(numpy::PyArrayDyn::from_owned_array(py, a))
+}

@@ -1,8 +1,8 @@
-//! Python classes HermiteBasis and FourierGrid.
+//! Python classes HermiteBasis, FourierGrid and ProductGrid.
 
-use super::arrays::{to_usize, vec_f64};
+use super::arrays::{shaped_array, to_usize, vec_f64};
 use super::errors::IntoPyResult;
-use crate::basis::{fourier, hermite, Basis, BasisRef, ElementBasis, FourierGrid, HermiteBasis};
+use crate::basis::{fourier, hermite, Basis, BasisRef, ElementBasis, FourierGrid, HermiteBasis, PeriodicGrid, ProductGrid};
 use numpy::PyArray1;
 use super::display::key_value_table;
 use pyo3::exceptions::PyTypeError;
@@ -212,6 +212,122 @@ impl PyElementBasis {
     fn __reduce__<'py>(slf: &Bound<'py, Self>) -> (Bound<'py, PyType>, (Vec<f64>, usize)) {
         let b = &slf.get().inner;
         (slf.get_type(), (b.edges(), b.order()))
+    }
+}
+
+/// Periodic product grid of two or three FourierGrids (see `_core.pyi`).
+#[pyclass(name = "ProductGrid", module = "specwell._core", frozen)]
+pub struct PyProductGrid {
+    pub inner: Arc<ProductGrid>,
+    axes: Vec<Py<PyFourierGrid>>,
+}
+
+#[pymethods]
+impl PyProductGrid {
+    #[new]
+    #[pyo3(signature = (gx, gy, gz=None))]
+    fn new(py: Python<'_>, gx: &Bound<'_, PyAny>, gy: &Bound<'_, PyAny>, gz: Option<&Bound<'_, PyAny>>) -> PyResult<Self> {
+        let mut axes = Vec::new();
+        for (name, g) in [("gx", Some(gx)), ("gy", Some(gy)), ("gz", gz)] {
+            let Some(g) = g else { continue };
+            let fg = g.cast::<PyFourierGrid>().map_err(|_| {
+                PyTypeError::new_err(format!(
+                    "`{name}` must be a specwell.FourierGrid (one axis of the product grid); got {}",
+                    g.get_type().name().map(|n| n.to_string()).unwrap_or_default()
+                ))
+            })?;
+            axes.push(fg.clone().unbind());
+        }
+        let grids = axes.iter().map(|g| g.get().inner.clone()).collect();
+        let inner = py.detach(|| ProductGrid::new(grids)).py(py)?;
+        Ok(PyProductGrid { inner: Arc::new(inner), axes })
+    }
+    /// Points per axis.
+    #[getter]
+    fn shape(&self) -> Vec<usize> {
+        self.inner.shape()
+    }
+    #[getter]
+    fn ndim(&self) -> usize {
+        self.inner.ndim()
+    }
+    /// Total number of points.
+    #[getter]
+    fn points(&self) -> usize {
+        PeriodicGrid::len(&*self.inner)
+    }
+    /// The axis grids (x, y[, z]).
+    #[getter]
+    fn axes(&self, py: Python<'_>) -> Vec<Py<PyFourierGrid>> {
+        self.axes.iter().map(|g| g.clone_ref(py)).collect()
+    }
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.axis(0).x())
+    }
+    #[getter]
+    fn y<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        PyArray1::from_slice(py, self.inner.axis(1).x())
+    }
+    /// z points (None on a 2D grid).
+    #[getter]
+    fn z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        (self.inner.ndim() == 3).then(|| PyArray1::from_slice(py, self.inner.axis(2).x()))
+    }
+    /// Grid spacings (dx, dy[, dz]).
+    #[getter]
+    fn spacing(&self) -> Vec<f64> {
+        (0..self.inner.ndim()).map(|a| self.inner.axis(a).dx()).collect()
+    }
+    /// Cell volume dV = dx·dy[·dz].
+    #[getter(dV)]
+    fn dv(&self) -> f64 {
+        self.inner.cell_volume()
+    }
+    /// Wave numbers of each axis, 2π·fftfreq(n, d).
+    #[getter]
+    fn k<'py>(&self, py: Python<'py>) -> Vec<Bound<'py, PyArray1<f64>>> {
+        (0..self.inner.ndim()).map(|a| PyArray1::from_slice(py, self.inner.axis(a).k())).collect()
+    }
+    /// |k|² = Σ k_a² on the grid's shape (FFT layout, numpy fftfreq order per axis).
+    #[getter]
+    fn k_squared<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, numpy::PyArrayDyn<f64>>> {
+        shaped_array(py, &self.inner.shape(), self.inner.k_squared())
+    }
+    /// Coordinate arrays of the points (numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)).
+    #[pyo3(signature = (sparse=false))]
+    fn mesh<'py>(&self, py: Python<'py>, sparse: bool) -> PyResult<Bound<'py, PyAny>> {
+        let np = py.import("numpy")?;
+        let axes: Vec<Bound<'py, PyArray1<f64>>> =
+            (0..self.inner.ndim()).map(|a| PyArray1::from_slice(py, self.inner.axis(a).x())).collect();
+        let kwargs = pyo3::types::PyDict::new(py);
+        kwargs.set_item("indexing", "ij")?;
+        kwargs.set_item("sparse", sparse)?;
+        let out = np.getattr("meshgrid")?.call(pyo3::types::PyTuple::new(py, axes)?, Some(&kwargs))?;
+        Ok(pyo3::types::PyTuple::new(py, out.try_iter()?.collect::<PyResult<Vec<_>>>()?)?.into_any())
+    }
+    fn __len__(&self) -> usize {
+        PeriodicGrid::len(&*self.inner)
+    }
+    fn __repr__(&self) -> String {
+        self.inner.describe_grid()
+    }
+    fn _repr_html_(&self) -> String {
+        let g = &self.inner;
+        let names = ["x", "y", "z"];
+        let mut rows: Vec<(&str, String)> = (0..g.ndim())
+            .map(|a| {
+                let ax = g.axis(a);
+                (names[a], format!("[{}, {}) × {} (d{} = {:.4e})", ax.start(), ax.stop(), ax.len(), names[a], ax.dx()))
+            })
+            .collect();
+        rows.push(("points", PeriodicGrid::len(&**g).to_string()));
+        key_value_table("ProductGrid", &rows)
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyType>, Bound<'py, pyo3::types::PyTuple>)> {
+        let py = slf.py();
+        let args = pyo3::types::PyTuple::new(py, slf.get().axes.iter().map(|g| g.clone_ref(py)))?;
+        Ok((slf.get_type(), args))
     }
 }
 

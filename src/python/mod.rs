@@ -5,6 +5,7 @@
 #![allow(clippy::too_many_arguments, clippy::type_complexity)]
 
 mod arrays;
+mod atoms;
 mod basis;
 mod display;
 mod errors;
@@ -22,6 +23,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<basis::PyHermiteBasis>()?;
     m.add_class::<basis::PyFourierGrid>()?;
     m.add_class::<basis::PyElementBasis>()?;
+    m.add_class::<basis::PyProductGrid>()?;
     m.add_class::<hamiltonian::PyHamiltonian>()?;
     m.add_class::<hamiltonian::PySpectrum>()?;
     m.add_class::<hamiltonian::PyBatch>()?;
@@ -37,9 +39,15 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(selfconsistent::self_consistent_batch, m)?)?;
     m.add_class::<propagate::PySplitStep>()?;
     m.add_class::<propagate::PyRun>()?;
+    m.add_class::<propagate::PyGroundState>()?;
+    m.add_function(wrap_pyfunction!(propagate::_bare_grid_fft_pair_seconds, m)?)?;
+    m.add_function(wrap_pyfunction!(atoms::angular_frequency, m)?)?;
+    m.add_function(wrap_pyfunction!(atoms::oscillator_length, m)?)?;
+    m.add_function(wrap_pyfunction!(atoms::coupling_constant, m)?)?;
     m.add_function(wrap_pyfunction!(propagate::_split_step_from_parts, m)?)?;
     m.add_function(wrap_pyfunction!(propagate::_bare_fft_pair_seconds, m)?)?;
     m.add_function(wrap_pyfunction!(propagate::_run_from_parts, m)?)?;
+    m.add_function(wrap_pyfunction!(propagate::_ground_state_from_parts, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::eigh, m)?)?;
     m.add_function(wrap_pyfunction!(unit_constants, m)?)?;
     m.add_function(wrap_pyfunction!(hamiltonian::_spectrum_from_parts, m)?)?;
@@ -51,7 +59,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     Ok(())
 }
 
-/// (ħ²/2m_e, ħ) of a unit system: energy·length² and energy·time.
+/// (ħ²/2m₁, ħ) of a unit system (m₁ its mass unit: m_e, or u for "cold-atom"): energy·length² and energy·time.
 #[pyfunction]
 fn unit_constants(units: &str) -> PyResult<(f64, f64)> {
     let u = crate::model::units::Units::parse(units).map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;

@@ -1,24 +1,115 @@
-//! Python classes SplitStep and Run.
+//! Python classes SplitStep, Run and GroundState.
 
-use super::arrays::{complex_array, to_usize, vec_f64};
-use super::basis::PyFourierGrid;
+use super::arrays::{complex_array, real_nd, shaped_array, to_usize, vec_f64};
+use super::basis::{PyFourierGrid, PyProductGrid};
 use super::errors::IntoPyResult;
 use super::hamiltonian::potential_samples;
-use crate::basis::BasisRef;
-use crate::propagate::{DriveSampling, Run, SplitOrder, SplitStep, SplitStepOptions};
+use super::layers::PyHeterostructure;
+use crate::basis::{BasisRef, PeriodicGrid};
 use crate::model::units::Units;
+use crate::propagate::{DriveSampling, GroundStates, Run, SplitOrder, SplitStep, SplitStepOptions};
 use num_complex::Complex64;
-use numpy::{PyArray1, PyArray2};
+use numpy::{PyArray1, PyArrayDyn};
 use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyValueError};
 use pyo3::prelude::*;
 use pyo3::types::PyTuple;
 use std::sync::Arc;
 
-/// Split-step Fourier propagator on a FourierGrid (see `_core.pyi`).
+/// The grid of a SplitStep: the Python object (returned by `.grid`) and the core grid.
+struct GridArg {
+    obj: Py<PyAny>,
+    core: Arc<dyn PeriodicGrid>,
+    /// The 1D grid, for the potential conversion shared with Hamiltonian.
+    line: Option<BasisRef>,
+}
+
+fn extract_grid(grid: &Bound<'_, PyAny>) -> PyResult<GridArg> {
+    if let Ok(g) = grid.cast::<PyFourierGrid>() {
+        let inner = g.get().inner.clone();
+        return Ok(GridArg { obj: grid.clone().unbind(), core: inner.clone(), line: Some(BasisRef::Fourier(inner)) });
+    }
+    if let Ok(g) = grid.cast::<PyProductGrid>() {
+        return Ok(GridArg { obj: grid.clone().unbind(), core: g.get().inner.clone(), line: None });
+    }
+    Err(PyTypeError::new_err(format!(
+        "`grid` must be a specwell.FourierGrid or specwell.ProductGrid (split-step needs a periodic grid); got {}",
+        grid.get_type().name().map(|n| n.to_string()).unwrap_or_default()
+    )))
+}
+
+fn shape_str(shape: &[usize]) -> String {
+    match shape {
+        [n] => format!("({n},)"),
+        _ => format!("({})", shape.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ")),
+    }
+}
+
+/// Samples of a potential-like argument on the grid points, flat in C order: on a
+/// FourierGrid as for Hamiltonian (callable f(x) or array on grid.x); on a ProductGrid a
+/// callable f(x, y[, z]) called once with the broadcastable coordinate arrays
+/// (numpy.meshgrid(..., indexing="ij", sparse=True)) returning the grid's shape (or an
+/// array that broadcasts to it, or a number), or an array of exactly the grid's shape.
+fn grid_samples(obj: &Bound<'_, PyAny>, grid: &GridArg, name: &str) -> PyResult<Vec<f64>> {
+    if let Some(line) = &grid.line {
+        return potential_samples(obj, line, name);
+    }
+    let py = obj.py();
+    let g = &grid.core;
+    let shape = g.shape();
+    let dims = ["x", "y", "z"][..shape.len()].join(", ");
+    if obj.cast::<PyHeterostructure>().is_ok() {
+        return Err(PyTypeError::new_err(format!(
+            "`{name}` is a Heterostructure, which is accepted only as the potential of a 1D Hamiltonian; on a ProductGrid `{name}` must be a callable f({dims}) or an array of shape {}",
+            shape_str(&shape)
+        )));
+    }
+    if obj.is_callable() {
+        let np = py.import("numpy")?;
+        let axes: Vec<Bound<'_, PyArray1<f64>>> = (0..shape.len()).map(|a| PyArray1::from_slice(py, g.axis(a).x())).collect();
+        let kwargs = pyo3::types::PyDict::new(py);
+        kwargs.set_item("indexing", "ij")?;
+        kwargs.set_item("sparse", true)?;
+        let mesh = np.getattr("meshgrid")?.call(PyTuple::new(py, axes)?, Some(&kwargs))?;
+        let args = PyTuple::new(py, mesh.try_iter()?.collect::<PyResult<Vec<_>>>()?)?;
+        let values = obj.call1(args).inspect_err(|e| {
+            let _ = e.value(py).call_method1(
+                "add_note",
+                (format!("raised while evaluating `{name}` at the grid points: called once as f({dims}) with broadcastable float64 coordinate arrays"),),
+            );
+        })?;
+        if let Ok(c) = values.extract::<f64>() {
+            return Ok(vec![c; g.len()]);
+        }
+        let (got, data) = real_nd(&values, name)?;
+        if got == shape {
+            return Ok(data);
+        }
+        let target = PyTuple::new(py, &shape)?;
+        let wide = np.call_method1("broadcast_to", (&values, target)).map_err(|_| {
+            PyValueError::new_err(format!(
+                "`{name}` (a callable f({dims})) must return an array of the grid's shape {} or one that broadcasts to it; got shape {}",
+                shape_str(&shape),
+                shape_str(&got)
+            ))
+        })?;
+        return Ok(real_nd(&wide, name)?.1);
+    }
+    let (got, data) = real_nd(obj, name)?;
+    if got != shape {
+        return Err(PyValueError::new_err(format!(
+            "`{name}` must be an array of the grid's shape {} (or a callable f({dims})); got shape {}",
+            shape_str(&shape),
+            shape_str(&got)
+        )));
+    }
+    Ok(data)
+}
+
+/// Split-step Fourier propagator on a FourierGrid or ProductGrid (see `_core.pyi`).
 #[pyclass(name = "SplitStep", module = "specwell._core", frozen)]
 pub struct PySplitStep {
     core: Arc<SplitStep>,
-    grid: Py<PyFourierGrid>,
+    grid: Py<PyAny>,
     /// f(t): a callable (evaluated at the sub-step times of each run) or per-step samples.
     drive: Option<Py<PyAny>>,
 }
@@ -39,9 +130,10 @@ fn scalar_mass(m: &Bound<'_, PyAny>) -> PyResult<f64> {
 impl PySplitStep {
     #[new]
     #[pyo3(signature = (grid, potential, mass=None, dt=None, order=None, units="natural", *, drive=None,
-                        drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=false),
-           text_signature = "(grid, potential, mass=1.0, dt=None, order=None, units='natural', *, drive=None, drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=False)")]
-        fn new(
+                        drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=false,
+                        nonlinearity=0.0),
+           text_signature = "(grid, potential, mass=1.0, dt=None, order=None, units='natural', *, drive=None, drive_potential=None, absorber_width=None, absorber_potential=None, imaginary_time=False, nonlinearity=0.0)")]
+    fn new(
         py: Python<'_>,
         grid: &Bound<'_, PyAny>,
         potential: &Bound<'_, PyAny>,
@@ -54,14 +146,12 @@ impl PySplitStep {
         absorber_width: Option<f64>,
         absorber_potential: Option<&Bound<'_, PyAny>>,
         imaginary_time: bool,
+        nonlinearity: f64,
     ) -> PyResult<Self> {
         let units = Units::parse(units).py(py)?;
-        let g = grid
-            .cast::<PyFourierGrid>()
-            .map_err(|_| PyTypeError::new_err("`grid` must be a specwell.FourierGrid (split-step needs a periodic grid)"))?;
-        let gref = BasisRef::Fourier(g.get().inner.clone());
+        let g = extract_grid(grid)?;
         let dt = dt.ok_or_else(|| PyTypeError::new_err("`dt` is required: the time step (time units; > 0 for imaginary time)"))?;
-        let mut o = SplitStepOptions::new(g.get().inner.clone(), potential_samples(potential, &gref, "potential")?, dt);
+        let mut o = SplitStepOptions::new(g.core.clone(), grid_samples(potential, &g, "potential")?, dt);
         o.units = units;
         o.mass = match mass {
             None => 1.0,
@@ -74,12 +164,13 @@ impl PySplitStep {
             o.order = SplitOrder::from_number(k).py(py)?;
         }
         crate::propagate::drive::check_drive_pair(drive.is_some(), drive_potential.is_some()).py(py)?;
-        o.drive_potential = drive_potential.map(|d| potential_samples(d, &gref, "drive_potential")).transpose()?;
+        o.drive_potential = drive_potential.map(|d| grid_samples(d, &g, "drive_potential")).transpose()?;
         o.absorber_width = absorber_width;
-        o.absorber_potential = absorber_potential.map(|a| potential_samples(a, &gref, "absorber_potential")).transpose()?;
+        o.absorber_potential = absorber_potential.map(|a| grid_samples(a, &g, "absorber_potential")).transpose()?;
         o.imaginary_time = imaginary_time;
+        o.nonlinearity = nonlinearity;
         let core = py.detach(|| SplitStep::new(o)).py(py)?;
-        Ok(PySplitStep { core: Arc::new(core), grid: g.clone().unbind(), drive: drive.map(|d| d.clone().unbind()) })
+        Ok(PySplitStep { core: Arc::new(core), grid: g.obj, drive: drive.map(|d| d.clone().unbind()) })
     }
 
     /// Propagate `psi0` for `steps` steps; records every `record_every` steps (and the last).
@@ -94,8 +185,11 @@ impl PySplitStep {
     ) -> PyResult<PyRun> {
         let n = self.core.n();
         let (shape, data) = complex_array(psi0, "psi0")?;
-        if shape != [n] {
-            return Err(PyValueError::new_err(format!("`psi0` must have shape ({n},); got {shape:?}")));
+        if shape != self.core.shape() {
+            return Err(PyValueError::new_err(format!(
+                "`psi0` must have shape {} (the grid's shape); got {shape:?}",
+                shape_str(self.core.shape())
+            )));
         }
         let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
         let record_every = match record_every {
@@ -104,7 +198,7 @@ impl PySplitStep {
         };
         // Refuse oversized record sets before evaluating a drive callable.
         let records = (steps / record_every + 2) as u64;
-        crate::error::check_memory("record_every", records * n as u64 * 16, "record fewer snapshots: raise record_every").py(py)?;
+        crate::error::check_memory("record_every", records.saturating_mul(n as u64 * 16), "record fewer snapshots: raise record_every").py(py)?;
         let core = self.prepared(py, steps)?;
         let mut bar = ProgressBar::new(py, progress, steps as u64)?;
         let (result, interrupted) = {
@@ -131,7 +225,7 @@ impl PySplitStep {
         Ok(PyRun::new(run, self.grid.clone_ref(py), self.core.options().units))
     }
 
-    /// Propagate many initial states (rows of `psi0s`, shape (M, N)) in parallel.
+    /// Propagate many initial states (shape (M, *grid.shape)) in parallel.
     #[pyo3(signature = (psi0s, steps, record_every=None))]
     fn run_many(
         &self,
@@ -140,10 +234,10 @@ impl PySplitStep {
         steps: &Bound<'_, PyAny>,
         record_every: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Vec<PyRun>> {
-        let n = self.core.n();
         let (shape, data) = complex_array(psi0s, "psi0s")?;
-        if shape.len() != 2 || shape[1] != n || shape[0] == 0 {
-            return Err(PyValueError::new_err(format!("`psi0s` must have shape (M, {n}) with M >= 1; got {shape:?}")));
+        if shape.len() != self.core.shape().len() + 1 || shape[1..] != *self.core.shape() || shape[0] == 0 {
+            let want = self.core.shape().iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ");
+            return Err(PyValueError::new_err(format!("`psi0s` must have shape (M, {want}) with M >= 1; got {shape:?}")));
         }
         let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
         let record_every = match record_every {
@@ -155,8 +249,9 @@ impl PySplitStep {
         Ok(runs.into_iter().map(|r| PyRun::new(r, self.grid.clone_ref(py), self.core.options().units)).collect())
     }
 
-    /// Lowest `count` states by imaginary-time propagation with Gram-Schmidt
-    /// (requires imaginary_time=True). Returns (energies, states (count, N)).
+    /// Lowest `count` states by imaginary-time propagation (requires imaginary_time=True).
+    /// Returns (energies, states (count, *grid.shape)); with a nonlinearity only count=1,
+    /// and the energy is the chemical potential.
     #[pyo3(signature = (count, tol=1e-9, max_steps=None, seed=None))]
     fn ground_states<'py>(
         &self,
@@ -165,20 +260,19 @@ impl PySplitStep {
         tol: f64,
         max_steps: Option<&Bound<'py, PyAny>>,
         seed: Option<&Bound<'py, PyAny>>,
-    ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray2<Complex64>>)> {
-        let n = self.core.n();
-        let count = to_usize(count, "count", 1, n)?;
-        let max_steps = match max_steps {
-            None => 200_000,
-            Some(m) => to_usize(m, "max_steps", 1, usize::MAX >> 8)?,
-        };
-        crate::error::check_positive("tol", tol).py(py)?;
-        let seed = super::arrays::seed_arg(seed)?;
-        let core = self.core.clone();
-        let gs = py.detach(move || core.ground_states(count, tol, max_steps, seed)).py(py)?;
-        let states = ndarray::Array2::from_shape_vec((count, n), gs.states)
-            .map_err(|e| PyValueError::new_err(e.to_string()))?;
-        Ok((PyArray1::from_vec(py, gs.energies), PyArray2::from_owned_array(py, states)))
+    ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArrayDyn<Complex64>>)> {
+        let gs = self.solve_ground(py, Some(count), tol, max_steps, seed)?;
+        let mut shape = vec![gs.energies.len()];
+        shape.extend_from_slice(self.core.shape());
+        let states = shaped_array(py, &shape, gs.states)?;
+        Ok((PyArray1::from_vec(py, gs.energies), states))
+    }
+
+    /// The ground state by imaginary time with its chemical potential and energy functional.
+    #[pyo3(signature = (tol=1e-9, max_steps=None, seed=None))]
+    fn ground_state(&self, py: Python<'_>, tol: f64, max_steps: Option<&Bound<'_, PyAny>>, seed: Option<&Bound<'_, PyAny>>) -> PyResult<PyGroundState> {
+        let gs = self.solve_ground(py, None, tol, max_steps, seed)?;
+        Ok(PyGroundState { inner: gs, shape: self.core.shape().to_vec(), units: self.core.options().units, nonlinearity: self.core.nonlinearity() })
     }
 
     /// Times (relative to t0 = 0) at which a callable drive f(t) is evaluated for a run of `steps`.
@@ -205,24 +299,29 @@ impl PySplitStep {
     fn mass(&self) -> f64 {
         self.core.options().mass
     }
+    /// g of the mean-field term g|ψ|² (0: linear).
     #[getter]
-    fn grid(&self, py: Python<'_>) -> Py<PyFourierGrid> {
+    fn nonlinearity(&self) -> f64 {
+        self.core.nonlinearity()
+    }
+    #[getter]
+    fn grid(&self, py: Python<'_>) -> Py<PyAny> {
         self.grid.clone_ref(py)
     }
     #[getter]
-    fn potential<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        PyArray1::from_slice(py, self.core.potential())
+    fn potential<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<f64>>> {
+        shaped_array(py, self.core.shape(), self.core.potential().to_vec())
     }
     fn __repr__(&self) -> String {
-        use crate::basis::Basis;
         let o = self.core.options();
         format!(
-            "SplitStep({}, dt={}, order={}, mass={}, units={:?}{}{})",
-            self.grid.get().inner.describe(),
+            "SplitStep({}, dt={}, order={}, mass={}, units={:?}{}{}{})",
+            o.grid.describe_grid(),
             o.dt,
             o.order.number(),
             o.mass,
             o.units.name(),
+            if o.nonlinearity != 0.0 { format!(", nonlinearity={}", o.nonlinearity) } else { String::new() },
             if self.drive.is_some() { ", driven" } else { "" },
             if o.imaginary_time { ", imaginary time" } else { "" }
         )
@@ -233,21 +332,28 @@ impl PySplitStep {
         let o = s.core.options();
         let ctor = py.import("specwell._core")?.getattr("_split_step_from_parts")?;
         let none = || py.None();
-        let arr = |v: &Option<Vec<f64>>| v.as_ref().map(|d| PyArray1::from_slice(py, d).into_any().unbind()).unwrap_or_else(none);
+        let shape = s.core.shape();
+        let arr = |v: &Option<Vec<f64>>| -> PyResult<Py<PyAny>> {
+            Ok(match v {
+                Some(d) => shaped_array(py, shape, d.clone())?.into_any().unbind(),
+                None => none(),
+            })
+        };
         let args = PyTuple::new(
             py,
             [
-                s.grid.clone_ref(py).into_any(),
-                PyArray1::from_slice(py, &o.potential).into_any().unbind(),
+                s.grid.clone_ref(py),
+                shaped_array(py, shape, o.potential.clone())?.into_any().unbind(),
                 o.mass.into_pyobject(py)?.into_any().unbind(),
                 o.dt.into_pyobject(py)?.into_any().unbind(),
                 o.order.number().into_pyobject(py)?.into_any().unbind(),
                 o.units.name().into_pyobject(py)?.into_any().unbind(),
                 s.drive.as_ref().map(|d| d.clone_ref(py)).unwrap_or_else(none),
-                arr(&o.drive_potential),
+                arr(&o.drive_potential)?,
                 o.absorber_width.map(|w| w.into_pyobject(py).map(|o| o.into_any().unbind())).transpose()?.unwrap_or_else(none),
-                arr(&o.absorber_potential),
+                arr(&o.absorber_potential)?,
                 o.imaginary_time.into_pyobject(py)?.to_owned().into_any().unbind(),
+                o.nonlinearity.into_pyobject(py)?.into_any().unbind(),
             ],
         )?;
         Ok((ctor, args))
@@ -260,6 +366,30 @@ impl PySplitStep {
         let per_step = self.core.samples_per_step(DriveSampling::Substeps) as u64;
         let bytes = (steps as u64).saturating_mul(per_step).saturating_mul(16);
         crate::error::check_memory("steps", bytes, "the drive samples for this many steps do not fit; run in shorter segments").py(py)
+    }
+
+    /// `ground_states(count)` (count given) or `ground_state()` (count 1) in the core.
+    fn solve_ground(
+        &self,
+        py: Python<'_>,
+        count: Option<&Bound<'_, PyAny>>,
+        tol: f64,
+        max_steps: Option<&Bound<'_, PyAny>>,
+        seed: Option<&Bound<'_, PyAny>>,
+    ) -> PyResult<GroundStates> {
+        let n = self.core.n();
+        let count = match count {
+            Some(c) => to_usize(c, "count", 1, n)?,
+            None => 1,
+        };
+        let max_steps = match max_steps {
+            None => 200_000,
+            Some(m) => to_usize(m, "max_steps", 1, usize::MAX >> 8)?,
+        };
+        crate::error::check_positive("tol", tol).py(py)?;
+        let seed = super::arrays::seed_arg(seed)?;
+        let core = self.core.clone();
+        py.detach(move || core.ground_states(count, tol, max_steps, seed)).py(py)
     }
 
     /// The core propagator with the drive samples for a run of `steps` steps: a callable
@@ -288,6 +418,7 @@ impl PySplitStep {
 
 /// Rebuild a SplitStep (target of `SplitStep.__reduce__`).
 #[pyfunction]
+#[pyo3(signature = (grid, potential, mass, dt, order, units, drive, drive_potential, absorber_width, absorber_potential, imaginary_time, nonlinearity=0.0))]
 pub fn _split_step_from_parts(
     py: Python<'_>,
     grid: &Bound<'_, PyAny>,
@@ -301,8 +432,139 @@ pub fn _split_step_from_parts(
     absorber_width: Option<f64>,
     absorber_potential: Option<&Bound<'_, PyAny>>,
     imaginary_time: bool,
+    nonlinearity: f64,
 ) -> PyResult<PySplitStep> {
-    PySplitStep::new(py, grid, potential, Some(mass), Some(dt), Some(order), units, drive, drive_potential, absorber_width, absorber_potential, imaginary_time)
+    PySplitStep::new(
+        py,
+        grid,
+        potential,
+        Some(mass),
+        Some(dt),
+        Some(order),
+        units,
+        drive,
+        drive_potential,
+        absorber_width,
+        absorber_potential,
+        imaginary_time,
+        nonlinearity,
+    )
+}
+
+/// The ground state of `SplitStep.ground_state` (see `_core.pyi`).
+#[pyclass(name = "GroundState", module = "specwell._core", frozen)]
+pub struct PyGroundState {
+    inner: GroundStates,
+    shape: Vec<usize>,
+    units: Units,
+    nonlinearity: f64,
+}
+
+#[pymethods]
+impl PyGroundState {
+    /// μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (the eigenvalue when g = 0).
+    #[getter]
+    fn chemical_potential(&self) -> f64 {
+        self.inner.energies[0]
+    }
+    /// E = ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV.
+    #[getter]
+    fn energy(&self) -> f64 {
+        self.inner.energy_functional[0]
+    }
+    /// The state on the grid's shape (real, Σ|ψ|²dV = 1).
+    #[getter]
+    fn state<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<Complex64>>> {
+        shaped_array(py, &self.shape, self.inner.states.clone())
+    }
+    /// ‖H[ψ]ψ − μψ‖ (discrete norm).
+    #[getter]
+    fn residual(&self) -> f64 {
+        self.inner.residuals[0]
+    }
+    /// Imaginary-time steps taken.
+    #[getter]
+    fn steps(&self) -> usize {
+        self.inner.steps
+    }
+    /// |dμ/dτ| at the last imaginary-time check.
+    #[getter]
+    fn rate(&self) -> f64 {
+        self.inner.rates[0]
+    }
+    /// Conjugate-gradient iterations of the refinement (0 when g = 0).
+    #[getter]
+    fn refine_iterations(&self) -> usize {
+        self.inner.refine_iterations
+    }
+    #[getter]
+    fn nonlinearity(&self) -> f64 {
+        self.nonlinearity
+    }
+    #[getter]
+    fn units(&self) -> &'static str {
+        self.units.name()
+    }
+    fn __reduce__<'py>(slf: &Bound<'py, Self>) -> PyResult<(Bound<'py, PyAny>, Bound<'py, PyTuple>)> {
+        let py = slf.py();
+        let s = slf.get();
+        let r = &s.inner;
+        let ctor = py.import("specwell._core")?.getattr("_ground_state_from_parts")?;
+        let args = PyTuple::new(
+            py,
+            [
+                s.shape.clone().into_pyobject(py)?.into_any().unbind(),
+                s.units.name().into_pyobject(py)?.into_any().unbind(),
+                s.nonlinearity.into_pyobject(py)?.into_any().unbind(),
+                r.energies[0].into_pyobject(py)?.into_any().unbind(),
+                r.energy_functional[0].into_pyobject(py)?.into_any().unbind(),
+                PyArray1::from_slice(py, &r.states).into_any().unbind(),
+                r.residuals[0].into_pyobject(py)?.into_any().unbind(),
+                r.steps.into_pyobject(py)?.into_any().unbind(),
+                r.rates[0].into_pyobject(py)?.into_any().unbind(),
+                r.refine_iterations.into_pyobject(py)?.into_any().unbind(),
+            ],
+        )?;
+        Ok((ctor, args))
+    }
+    fn __repr__(&self) -> String {
+        format!(
+            "GroundState(chemical_potential={}, energy={}, residual={:.2e}, steps={})",
+            self.inner.energies[0], self.inner.energy_functional[0], self.inner.residuals[0], self.inner.steps
+        )
+    }
+}
+
+/// Rebuild a GroundState from its parts (target of `GroundState.__reduce__`).
+#[pyfunction]
+pub fn _ground_state_from_parts(
+    shape: Vec<usize>,
+    units: &str,
+    nonlinearity: f64,
+    chemical_potential: f64,
+    energy: f64,
+    state: Vec<Complex64>,
+    residual: f64,
+    steps: usize,
+    rate: f64,
+    refine_iterations: usize,
+) -> PyResult<PyGroundState> {
+    let units = Units::parse(units).map_err(|e| PyValueError::new_err(e.to_string()))?;
+    let n: usize = shape.iter().product();
+    if shape.is_empty() || shape.len() > 3 || n == 0 || state.len() != n {
+        return Err(PyValueError::new_err("inconsistent GroundState parts (shape and state size differ)"));
+    }
+    let inner = GroundStates {
+        n,
+        energies: vec![chemical_potential],
+        energy_functional: vec![energy],
+        states: state,
+        steps,
+        rates: vec![rate],
+        residuals: vec![residual],
+        refine_iterations,
+    };
+    Ok(PyGroundState { inner, shape, units, nonlinearity })
 }
 
 /// tqdm progress bar driven from the Rust loop (a no-op when progress=False).
@@ -343,14 +605,29 @@ impl ProgressBar {
 #[pyclass(name = "Run", module = "specwell._core", frozen)]
 pub struct PyRun {
     pub inner: Arc<Run>,
-    grid: Py<PyFourierGrid>,
+    grid: Py<PyAny>,
     units: Units,
 }
 
 impl PyRun {
-    fn new(run: Run, grid: Py<PyFourierGrid>, units: Units) -> Self {
+    fn new(run: Run, grid: Py<PyAny>, units: Units) -> Self {
         PyRun { inner: Arc::new(run), grid, units }
     }
+}
+
+fn optional<'py>(py: Python<'py>, v: &[f64]) -> Option<Bound<'py, PyArray1<f64>>> {
+    (!v.is_empty()).then(|| PyArray1::from_slice(py, v))
+}
+
+/// The points of axis `a` of a Run's grid (None when the grid has no such axis).
+fn axis_points<'py>(py: Python<'py>, grid: &Py<PyAny>, a: usize) -> Option<Bound<'py, PyArray1<f64>>> {
+    let g = grid.bind(py);
+    if let Ok(f) = g.cast::<PyFourierGrid>() {
+        return (a == 0).then(|| PyArray1::from_slice(py, f.get().inner.x()));
+    }
+    let p = g.cast::<PyProductGrid>().ok()?;
+    let inner = &p.get().inner;
+    (a < inner.ndim()).then(|| PyArray1::from_slice(py, inner.axis(a).x()))
 }
 
 #[pymethods]
@@ -359,13 +636,13 @@ impl PyRun {
     fn times<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.times)
     }
-    /// Recorded states, shape (records, N), complex128 samples ψ(x_j).
+    /// Recorded states, shape (records, *grid.shape), complex128 samples ψ(r_j).
     #[getter]
-    fn states<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<Complex64>>> {
+    fn states<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<Complex64>>> {
         let r = &self.inner;
-        let rows = r.times.len();
-        let a = ndarray::Array2::from_shape_vec((rows, r.n), r.states.clone()).map_err(|e| PyValueError::new_err(e.to_string()))?;
-        Ok(PyArray2::from_owned_array(py, a))
+        let mut shape = vec![r.times.len()];
+        shape.extend_from_slice(&r.shape);
+        shaped_array(py, &shape, r.states.clone())
     }
     #[getter]
     fn norm<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
@@ -376,8 +653,24 @@ impl PyRun {
         PyArray1::from_slice(py, &self.inner.mean_x)
     }
     #[getter]
+    fn mean_y<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        optional(py, &self.inner.mean_y)
+    }
+    #[getter]
+    fn mean_z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        optional(py, &self.inner.mean_z)
+    }
+    #[getter]
     fn mean_p<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.mean_p)
+    }
+    #[getter]
+    fn mean_py<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        optional(py, &self.inner.mean_py)
+    }
+    #[getter]
+    fn mean_pz<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        optional(py, &self.inner.mean_pz)
     }
     #[getter]
     fn energy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
@@ -402,12 +695,25 @@ impl PyRun {
         self.inner.record_steps.clone()
     }
     #[getter]
-    fn grid(&self, py: Python<'_>) -> Py<PyFourierGrid> {
+    fn grid(&self, py: Python<'_>) -> Py<PyAny> {
         self.grid.clone_ref(py)
     }
+    /// Points per axis of each recorded state.
     #[getter]
-    fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        PyArray1::from_slice(py, self.grid.get().inner.x())
+    fn shape(&self) -> Vec<usize> {
+        self.inner.shape.clone()
+    }
+    #[getter]
+    fn x<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        axis_points(py, &self.grid, 0).ok_or_else(|| PyValueError::new_err("run grid has no x axis"))
+    }
+    #[getter]
+    fn y<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        axis_points(py, &self.grid, 1)
+    }
+    #[getter]
+    fn z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
+        axis_points(py, &self.grid, 2)
     }
     #[getter]
     fn units(&self) -> &'static str {
@@ -434,10 +740,11 @@ impl PyRun {
         let s = slf.get();
         let r = &s.inner;
         let ctor = py.import("specwell._core")?.getattr("_run_from_parts")?;
+        let opt = |v: &Vec<f64>| if v.is_empty() { py.None() } else { PyArray1::from_slice(py, v).into_any().unbind() };
         let args = PyTuple::new(
             py,
             [
-                s.grid.clone_ref(py).into_any(),
+                s.grid.clone_ref(py),
                 s.units.name().into_pyobject(py)?.into_any().unbind(),
                 r.record_steps.clone().into_pyobject(py)?.into_any().unbind(),
                 PyArray1::from_slice(py, &r.times).into_any().unbind(),
@@ -450,6 +757,10 @@ impl PyRun {
                 r.absorbed_norm.into_pyobject(py)?.into_any().unbind(),
                 r.steps_done.into_pyobject(py)?.into_any().unbind(),
                 r.cancelled.into_pyobject(py)?.to_owned().into_any().unbind(),
+                opt(&r.mean_y),
+                opt(&r.mean_z),
+                opt(&r.mean_py),
+                opt(&r.mean_pz),
             ],
         )?;
         Ok((ctor, args))
@@ -479,10 +790,19 @@ pub fn _bare_fft_pair_seconds(py: Python<'_>, n: usize, reps: usize) -> f64 {
     py.detach(|| crate::propagate::bare_fft_pair_seconds(n, reps))
 }
 
+/// Seconds per forward+inverse pair of whole-state FFTs of a FourierGrid or ProductGrid.
+#[pyfunction]
+pub fn _bare_grid_fft_pair_seconds(py: Python<'_>, grid: &Bound<'_, PyAny>, reps: usize) -> PyResult<f64> {
+    let g = extract_grid(grid)?.core;
+    Ok(py.detach(|| crate::propagate::bare_grid_fft_pair_seconds(&*g, reps)))
+}
+
 /// Rebuild a Run from its parts (target of `Run.__reduce__`).
 #[pyfunction]
+#[pyo3(signature = (grid, units, record_steps, times, states, norm, mean_x, mean_p, energy, autocorrelation,
+                    absorbed_norm, steps_done, cancelled, mean_y=None, mean_z=None, mean_py=None, mean_pz=None))]
 pub fn _run_from_parts(
-    grid: &Bound<'_, PyFourierGrid>,
+    grid: &Bound<'_, PyAny>,
     units: &str,
     record_steps: Vec<usize>,
     times: Vec<f64>,
@@ -495,13 +815,44 @@ pub fn _run_from_parts(
     absorbed_norm: Option<f64>,
     steps_done: usize,
     cancelled: bool,
+    mean_y: Option<Vec<f64>>,
+    mean_z: Option<Vec<f64>>,
+    mean_py: Option<Vec<f64>>,
+    mean_pz: Option<Vec<f64>>,
 ) -> PyResult<PyRun> {
     let units = Units::parse(units).map_err(|e| PyValueError::new_err(e.to_string()))?;
-    let n = grid.get().inner.len();
+    let g = extract_grid(grid)?;
+    let shape = g.core.shape();
+    let nd = shape.len();
+    let n = g.core.len();
     let records = times.len();
-    if states.len() != records * n || [norm.len(), mean_x.len(), mean_p.len(), energy.len(), autocorrelation.len(), record_steps.len()].iter().any(|&l| l != records) {
+    let (mean_y, mean_z, mean_py, mean_pz) =
+        (mean_y.unwrap_or_default(), mean_z.unwrap_or_default(), mean_py.unwrap_or_default(), mean_pz.unwrap_or_default());
+    let axis_ok = |v: &Vec<f64>, a: usize| v.len() == if nd > a { records } else { 0 };
+    if states.len() != records * n
+        || [norm.len(), mean_x.len(), mean_p.len(), energy.len(), autocorrelation.len(), record_steps.len()].iter().any(|&l| l != records)
+        || !(axis_ok(&mean_y, 1) && axis_ok(&mean_py, 1) && axis_ok(&mean_z, 2) && axis_ok(&mean_pz, 2))
+    {
         return Err(PyValueError::new_err("inconsistent Run parts (record counts differ)"));
     }
-    let run = Run { n, record_steps, times, states, norm, mean_x, mean_p, energy, autocorrelation, absorbed_norm, steps_done, cancelled };
-    Ok(PyRun::new(run, grid.clone().unbind(), units))
+    let run = Run {
+        n,
+        shape,
+        record_steps,
+        times,
+        states,
+        norm,
+        mean_x,
+        mean_y,
+        mean_z,
+        mean_p,
+        mean_py,
+        mean_pz,
+        energy,
+        autocorrelation,
+        absorbed_norm,
+        steps_done,
+        cancelled,
+    };
+    Ok(PyRun::new(run, g.obj, units))
 }
