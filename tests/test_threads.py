@@ -162,7 +162,9 @@ def test_gil_released_during_heavy_work(name):
         H = sw.Hamiltonian(dense_grid, 0.5 * dense_grid.x**2)
         fn = lambda: H.solve(400, method="dense")  # noqa: E731
     elif name == "iterative":
-        big = sw.FourierGrid(-60.0, 60.0, 2**13)
+        # 2^19 points: the multilevel start made 2^13 a 0.05 s solve, too short for the
+        # 0.2 s workload floor below (issue 19); 2^19 takes ≈ 0.6 s on 2 cores.
+        big = sw.FourierGrid(-60.0, 60.0, 2**19)
         H = sw.Hamiltonian(big, 0.5 * big.x**2 + 0.01 * big.x**4)
         fn = lambda: H.solve(6, method="iterative", tol=1e-11)  # noqa: E731
     elif name == "batch":

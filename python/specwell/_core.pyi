@@ -1,6 +1,6 @@
 """Type stubs for the compiled core ``specwell._core``. Import names from ``specwell``."""
 
-from typing import Callable, Optional, Sequence, Tuple, Union, final
+from typing import Callable, List, Optional, Sequence, Tuple, Union, final
 
 import numpy as np
 import numpy.typing as npt
@@ -364,7 +364,14 @@ class Spectrum:
         """Method used ("dense" or "iterative")."""
     @property
     def iterations(self) -> int:
-        """Iterations of the iterative path (0 for dense)."""
+        """LOBPCG steps of the iterative path on the full basis (0 for dense)."""
+    @property
+    def levels(self) -> List[Tuple[int, int]]:
+        """(basis size, LOBPCG steps) of each coarse level of the iterative path's multilevel start.
+
+        Coarsest first; 0 steps means solved densely or already converged from the level below.
+        Empty for dense and warm-started solves.
+        """
     @property
     def units(self) -> str:
         """Unit system name."""

@@ -125,7 +125,11 @@ pub struct Spectrum {
     pub vectors: Mat<f64>,
     pub residuals: Vec<f64>,
     pub method: Method,
+    /// LOBPCG steps on the full basis (0 for dense).
     pub iterations: usize,
+    /// (basis size, LOBPCG steps) of each coarse level of the iterative path's
+    /// multilevel start, coarsest first (solved densely: 0 steps); empty otherwise.
+    pub levels: Vec<(usize, usize)>,
     pub attainable: Vec<f64>,
     pub note: Option<String>,
     /// Per-level error estimates (energy units) of a self-converged solve ([`stack`]).
@@ -186,7 +190,7 @@ impl Spectrum {
             let (l, r) = s.cladding_edges();
             energies.iter().map(|&e| e < l.min(r)).collect()
         });
-        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, note: None, errors, bound })
+        Ok(Spectrum { hamiltonian, energies, vectors, residuals, method, iterations, attainable, levels: Vec::new(), note: None, errors, bound })
     }
 
     pub fn count(&self) -> usize {
@@ -321,13 +325,21 @@ fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, method: Metho
     }
     let mut method = method;
     let mut note = None;
+    let mut levels = Vec::new();
+    // The iterative path's residuals come from products recomputed at its end (the sign
+    // convention below does not change them); the dense ones are computed here.
+    let mut known_residuals = None;
     let (energies, mut vectors, iterations, guards) = match method {
         Method::Dense | Method::Auto => {
             let (e, v) = dense_lowest(p, opts.count, par)?;
             (e, v, 0, Vec::new())
         }
         Method::Iterative => match iterative::solve(p, opts) {
-            Ok(s) => (s.energies, s.vectors, s.iterations, s.guards),
+            Ok(s) => {
+                levels = s.levels;
+                known_residuals = Some(s.residuals);
+                (s.energies, s.vectors, s.iterations, s.guards)
+            }
             // The automatic choice never fails where a dense solve fits: finish densely.
             Err(Error::Numerical(NumericalError::NotConverged { iterations, residuals, energies, .. }))
                 if opts.method == Method::Auto && dense_fits(p) =>
@@ -344,13 +356,13 @@ fn solve_keeping_guards(h: &Arc<Hamiltonian>, opts: &SolveOptions, method: Metho
         },
     };
     fix_signs(h.basis().as_dyn(), &mut vectors);
-    let residuals = residuals(p, &energies, &vectors);
+    let residuals = known_residuals.unwrap_or_else(|| residuals(p, &energies, &vectors));
     let attainable = attainable_accuracy(p, &energies);
     let bound = h.stack().map(|s| {
         let (l, r) = s.cladding_edges();
         energies.iter().map(|&e| e < l.min(r)).collect()
     });
-    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, attainable, note, errors: None, bound };
+    let spectrum = Spectrum { hamiltonian: h.clone(), energies, vectors, residuals, method, iterations, levels, attainable, note, errors: None, bound };
     Ok((spectrum, guards))
 }
 

@@ -309,6 +309,7 @@ fn finish(s: Solve, errors: Vec<f64>, keep: usize, edges: (f64, f64)) -> Spectru
         method: Method::Dense,
         iterations: 0,
         attainable,
+        levels: Vec::new(),
         note: None,
         errors: Some(errors[..keep].to_vec()),
         bound: Some(bound),

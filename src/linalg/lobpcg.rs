@@ -42,6 +42,7 @@ use crate::error::{check_finite, check_memory, check_positive, Error, InputError
 use faer::linalg::matmul::matmul;
 use faer::prelude::{Reborrow, ReborrowMut};
 use faer::{Accum, Mat, MatMut, MatRef, Par, Side};
+use std::borrow::Cow;
 use rayon::prelude::*;
 
 /// A real symmetric linear operator applied to column-major blocks of vectors.
@@ -77,13 +78,25 @@ pub struct IterativeOptions {
     pub initial: Option<Vec<f64>>,
     /// Extra guard vectors iterated along with the wanted ones.
     pub block_extra: usize,
+    /// Return the best estimates as `Ok` (with their true residuals, some above `tol`)
+    /// instead of [`NumericalError::NotConverged`] when the iteration stops short of
+    /// `tol`: for callers that use the result as a start for another solve.
+    pub accept_unconverged: bool,
 }
 
 impl IterativeOptions {
     /// Defaults: `tol = 1e-8`, `max_iter = 500`, `seed = 0`, no warm start,
-    /// `block_extra = max(2, count / 4)`.
+    /// `block_extra = max(2, count / 4)`, unconverged results are errors.
     pub fn new(count: usize) -> Self {
-        IterativeOptions { count, tol: 1e-8, max_iter: 500, seed: 0, initial: None, block_extra: default_block_extra(count) }
+        IterativeOptions {
+            count,
+            tol: 1e-8,
+            max_iter: 500,
+            seed: 0,
+            initial: None,
+            block_extra: default_block_extra(count),
+            accept_unconverged: false,
+        }
     }
 }
 
@@ -574,7 +587,12 @@ fn select(h: &Mat<f64>, idx: &[usize]) -> Mat<f64> {
     Mat::<f64>::from_fn(idx.len(), idx.len(), |i, j| h[(idx[i], idx[j])])
 }
 
-fn validate(a: &dyn SymmetricOperator, b: Option<&dyn SymmetricOperator>, opts: &IterativeOptions) -> std::result::Result<(), InputError> {
+fn validate(
+    a: &dyn SymmetricOperator,
+    b: Option<&dyn SymmetricOperator>,
+    opts: &IterativeOptions,
+    initial: Option<&[f64]>,
+) -> std::result::Result<(), InputError> {
     let dim = a.dim();
     if let Some(b) = b {
         if b.dim() != dim {
@@ -595,7 +613,7 @@ fn validate(a: &dyn SymmetricOperator, b: Option<&dyn SymmetricOperator>, opts: 
     if opts.max_iter == 0 {
         return Err(InputError::range("max_iter", "an integer >= 1", opts.max_iter));
     }
-    if let Some(init) = &opts.initial {
+    if let Some(init) = initial {
         if init.len() % dim != 0 {
             return Err(InputError::range(
                 "initial",
@@ -622,7 +640,30 @@ pub fn lobpcg(
     precond: Option<&dyn Preconditioner>,
     opts: &IterativeOptions,
 ) -> Result<IterativeResult> {
-    validate(a, b, opts)?;
+    lobpcg_impl(a, b, precond, opts, opts.initial.as_deref().map(Cow::Borrowed))
+}
+
+/// [`lobpcg`] with the warm start `start` (replacing `opts.initial`) taken by value:
+/// it is freed as soon as it has been copied into the work buffer, so a large start
+/// block does not stay alive next to the workspace.
+pub fn lobpcg_with_start(
+    a: &dyn SymmetricOperator,
+    b: Option<&dyn SymmetricOperator>,
+    precond: Option<&dyn Preconditioner>,
+    opts: &IterativeOptions,
+    start: Vec<f64>,
+) -> Result<IterativeResult> {
+    lobpcg_impl(a, b, precond, opts, Some(Cow::Owned(start)))
+}
+
+fn lobpcg_impl(
+    a: &dyn SymmetricOperator,
+    b: Option<&dyn SymmetricOperator>,
+    precond: Option<&dyn Preconditioner>,
+    opts: &IterativeOptions,
+    initial: Option<Cow<'_, [f64]>>,
+) -> Result<IterativeResult> {
+    validate(a, b, opts, initial.as_deref())?;
     let dim = a.dim();
     let count = opts.count;
     let m = count + opts.block_extra;
@@ -646,8 +687,8 @@ pub fn lobpcg(
         lambda: vec![0.0; m],
     };
     // start block: warm-start columns, then random ones
-    let k0 = opts.initial.as_ref().map_or(0, |v| (v.len() / dim).min(m));
-    if let Some(init) = &opts.initial {
+    let k0 = initial.as_ref().map_or(0, |v| (v.len() / dim).min(m));
+    if let Some(init) = initial {
         w.s[..k0 * dim].copy_from_slice(&init[..k0 * dim]);
     }
     for j in k0..m {
@@ -666,11 +707,12 @@ pub fn lobpcg(
         // Progress is judged on absolute residuals: relative ones change scale with the
         // Ritz values themselves, which fall by orders of magnitude from a random start.
         let score = (0..count).map(|j| res[j] * w.lambda[j].abs().max(1.0)).fold(0.0_f64, f64::max);
-        if fresh && score.is_finite() && score < IMPROVEMENT * best.score {
-            best.save(&w, &res, iter);
-        }
         let converged: Vec<bool> = (0..m).map(|j| j < count && res[j] <= opts.tol).collect();
         let done = converged[..count].iter().all(|&c| c);
+        // (a converged iterate is returned at once: no copy needed)
+        if !done && fresh && score.is_finite() && score < IMPROVEMENT * best.score {
+            best.save(&w, &res, iter);
+        }
         // Stagnation (no halving of the best residual for STALL_ITERS steps) or divergence
         // (residuals far above the best, or not finite), judged on explicit products:
         // restart from the best iterate with fresh directions, up to MAX_RESTARTS
@@ -713,11 +755,22 @@ pub fn lobpcg(
             }
             // Not converged: report the last iterate, or the best one seen when the last
             // has drifted well above it (true residuals either way).
-            let (energies, residuals) = if score > 10.0 * best.score {
+            let use_best = score > 10.0 * best.score;
+            let (energies, residuals) = if use_best {
                 (best.lambda.clone(), best.res.clone())
             } else {
                 (w.lambda[..count].to_vec(), res[..count].to_vec())
             };
+            if opts.accept_unconverged {
+                let x = if use_best { &best.x[..] } else { &w.s[..m * dim] };
+                return Ok(IterativeResult {
+                    energies,
+                    vectors: x[..count * dim].to_vec(),
+                    residuals,
+                    iterations: iter,
+                    guards: x[count * dim..m * dim].to_vec(),
+                });
+            }
             return Err(NumericalError::NotConverged { iterations: iter, tol: opts.tol, energies, residuals }.into());
         }
         // AX and BX are updated implicitly; recompute them explicitly now and then so

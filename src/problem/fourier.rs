@@ -8,15 +8,14 @@
 //! alternating vector (−1)^j/√n, so that a constant profile gives exactly the
 //! constant-mass operator. Symmetric by construction. Coefficients c_j = ψ(x_j)·√dx.
 
+use super::shifted_kinetic::ShiftedKineticPreconditioner;
 use super::{Coarse, DiscreteProblem, Kinetic, Structure};
 use crate::basis::FourierGrid;
 use crate::linalg::lobpcg::Preconditioner;
 use faer::{Mat, MatRef};
 use num_complex::Complex64;
+use rayon::prelude::*;
 use std::sync::Arc;
-
-/// Largest refinement factor of [`FourierProblem::coarsened`].
-const COARSE_FACTOR: usize = 8;
 
 /// H = T + V on a [`FourierGrid`].
 pub struct FourierProblem {
@@ -56,29 +55,37 @@ impl DiscreteProblem for FourierProblem {
     }
 
     /// FFTs, O(N log N) per column; two real columns per complex FFT
-    /// (H(a + ib) = Ha + iHb because H is real).
+    /// (H(a + ib) = Ha + iHb because H is real). Column pairs run in parallel on large
+    /// grids (each pair is computed the same way whatever the thread count).
     fn apply_a(&self, x: &[f64], y: &mut [f64], ncols: usize) {
         let g = &self.grid;
         let n = g.len();
-        let mut buf = vec![Complex64::new(0.0, 0.0); n];
-        let mut aux = vec![Complex64::new(0.0, 0.0); n];
-        let mut scratch = vec![Complex64::new(0.0, 0.0); g.forward().get_inplace_scratch_len()];
-        let mut j = 0;
-        while j < ncols {
-            let second = j + 1 < ncols;
+        let pair = |p: usize, yc: &mut [f64], s: &mut ApplyScratch| {
+            let xc = &x[2 * p * n..(2 * p * n + yc.len())];
+            let (xa, xb) = xc.split_at(n);
+            let (ya, yb) = yc.split_at_mut(n);
+            let second = !xb.is_empty();
             for i in 0..n {
-                let im = if second { x[(j + 1) * n + i] } else { 0.0 };
-                buf[i] = Complex64::new(x[j * n + i], im);
+                let im = if second { xb[i] } else { 0.0 };
+                s.buf[i] = Complex64::new(xa[i], im);
             }
-            kinetic_apply(g, &self.kinetic, &mut buf, &mut aux, &mut scratch);
+            kinetic_apply(g, &self.kinetic, &mut s.buf, &mut s.aux, &mut s.fft);
             for i in 0..n {
                 let v = self.potential[i];
-                y[j * n + i] = buf[i].re + v * x[j * n + i];
-                if second {
-                    y[(j + 1) * n + i] = buf[i].im + v * x[(j + 1) * n + i];
+                ya[i] = s.buf[i].re + v * xa[i];
+            }
+            if second {
+                for i in 0..n {
+                    yb[i] = s.buf[i].im + self.potential[i] * xb[i];
                 }
             }
-            j += 2;
+        };
+        let y = &mut y[..n * ncols];
+        if n >= PAR_APPLY_DIM && ncols > 2 {
+            y.par_chunks_mut(2 * n).enumerate().for_each_init(|| ApplyScratch::new(g, &self.kinetic), |s, (p, yc)| pair(p, yc, s));
+        } else {
+            let mut s = ApplyScratch::new(g, &self.kinetic);
+            y.chunks_mut(2 * n).enumerate().for_each(|(p, yc)| pair(p, yc, &mut s));
         }
     }
 
@@ -113,17 +120,20 @@ impl DiscreteProblem for FourierProblem {
         cmin * (2.0 * std::f64::consts::PI / (self.grid.stop() - self.grid.start())).powi(2)
     }
 
+    /// The kinetic operator shifted by the local potential level
+    /// ([`ShiftedKineticPreconditioner`]; mean ħ²/2m for a mass profile).
     fn preconditioner(&self) -> Option<Box<dyn Preconditioner + '_>> {
-        Some(Box::new(GridPreconditioner::with_potential(&self.grid, self.mean_kinetic(), self.potential.clone(), None)))
+        Some(Box::new(ShiftedKineticPreconditioner::new(&self.grid, self.mean_kinetic(), &self.potential)))
     }
 
-    /// The same box with n/r points (r ≤ 8 a power of two dividing n, n/r ≥ `min_dim`;
-    /// V and the mass subsampled), interpolated back in k.
+    /// The same box with n/r points, r the largest power of two dividing n with
+    /// n/r ≥ `min_dim` (V and the mass subsampled), interpolated back in k (two columns
+    /// per complex FFT).
     fn coarsened(&self, min_dim: usize) -> Option<Coarse> {
         let g = &self.grid;
         let n = g.len();
         let mut r = 1;
-        while r < COARSE_FACTOR && n.is_multiple_of(2 * r) && n / (2 * r) >= min_dim {
+        while n.is_multiple_of(2 * r) && n / (2 * r) >= min_dim.max(2) {
             r *= 2;
         }
         if r == 1 {
@@ -138,8 +148,15 @@ impl DiscreteProblem for FourierProblem {
         let masses = if self.masses.len() == 1 { self.masses.clone() } else { sub(&self.masses) };
         let problem = FourierProblem::new(cg.clone(), sub(&self.potential), kinetic, masses);
         let fine = g.clone();
-        // A start block only: the scale (√dx of the coefficients) does not matter.
-        let interpolate = move |c: &[f64]| -> Vec<f64> { cg.upsample(c, &fine) };
+        // Coefficients c_j = ψ(x_j)·√dx: samples interpolated, then scaled by √(dx_f/dx_c),
+        // so that an orthonormal coarse block stays orthonormal (up to its content at the
+        // coarse Nyquist mode, which is split between ±k).
+        let scale = (1.0 / r as f64).sqrt();
+        let interpolate = move |c: &[f64], ncols: usize| -> Vec<f64> {
+            let mut out = cg.upsample_block(c, ncols, &fine);
+            out.iter_mut().for_each(|v| *v *= scale);
+            out
+        };
         Some(Coarse { problem: Box::new(problem), interpolate: Box::new(interpolate) })
     }
 
@@ -157,6 +174,26 @@ impl DiscreteProblem for FourierProblem {
             return vec![self.masses[0]; v.ncols()];
         }
         (0..v.ncols()).map(|j| (0..v.nrows()).map(|i| v[(i, j)] * v[(i, j)] * self.masses[i]).sum()).collect()
+    }
+}
+
+/// Grids from this size on apply column pairs in parallel.
+const PAR_APPLY_DIM: usize = 16384;
+
+/// Work arrays of one column pair of [`FourierProblem::apply_a`].
+struct ApplyScratch {
+    buf: Vec<Complex64>,
+    aux: Vec<Complex64>,
+    fft: Vec<Complex64>,
+}
+
+impl ApplyScratch {
+    /// `aux` only for a mass profile (the uniform kinetic energy does not use it).
+    fn new(g: &FourierGrid, kinetic: &Kinetic) -> Self {
+        let z = Complex64::new(0.0, 0.0);
+        let s = g.forward().get_inplace_scratch_len().max(g.inverse().get_inplace_scratch_len());
+        let aux = if matches!(kinetic, Kinetic::Profile(_)) { g.len() } else { 0 };
+        ApplyScratch { buf: vec![z; g.len()], aux: vec![z; aux], fft: vec![z; s] }
     }
 }
 

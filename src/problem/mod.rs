@@ -19,6 +19,7 @@ pub mod fourier;
 pub mod hamiltonian;
 pub mod hermite;
 pub mod layered;
+pub mod shifted_kinetic;
 
 pub use hamiltonian::{Hamiltonian, Kinetic, Mass};
 
@@ -43,8 +44,9 @@ pub struct SymmetryBlocks {
     pub indices: Vec<Vec<usize>>,
 }
 
-/// Maps one coefficient vector of a coarse problem onto a finer basis.
-pub type Interpolator = Box<dyn Fn(&[f64]) -> Vec<f64> + Send + Sync>;
+/// Maps a column-major block of `ncols` coefficient vectors of a coarse problem onto a
+/// finer basis: `(block, ncols) -> block` (the fine block is column-major too).
+pub type Interpolator = Box<dyn Fn(&[f64], usize) -> Vec<f64> + Send + Sync>;
 
 /// A banded pencil: A symmetric with the band stored, B diagonal.
 pub struct BandPencil<'a> {
@@ -93,8 +95,10 @@ pub trait DiscreteProblem: Send + Sync {
     fn symmetry_blocks(&self) -> Option<SymmetryBlocks> {
         None
     }
-    /// The same problem on a basis about `factor` times smaller (at least `min_dim`),
-    /// for a coarse start of an iteration; `None` when it cannot be coarsened.
+    /// The same problem on the coarsest basis of at least `min_dim` functions that the
+    /// discretisation offers (for a Fourier grid: n/2^j points), with the map of its
+    /// vectors back onto this basis, for the multilevel start of an iteration; `None`
+    /// when it cannot be coarsened (to at least `min_dim` and below this size).
     fn coarsened(&self, min_dim: usize) -> Option<Coarse> {
         let _ = min_dim;
         None

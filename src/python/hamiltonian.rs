@@ -410,6 +410,13 @@ impl PySpectrum {
     fn iterations(&self) -> usize {
         self.inner.iterations
     }
+    /// (basis size, LOBPCG steps) of each coarse level of the iterative path's
+    /// multilevel start, coarsest first (0 steps: solved densely, or already converged
+    /// from the level below); empty for dense and warm-started solves.
+    #[getter]
+    fn levels(&self) -> Vec<(usize, usize)> {
+        self.inner.levels.clone()
+    }
     /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min, E_unit),
     /// E_unit the lowest kinetic quantum of the domain; shape (count,). Above 1e-8 a
     /// `specwell.AccuracyWarning` is issued by `solve`.

@@ -280,6 +280,7 @@ pub fn solve_from(stack: &Heterostructure, o: &Options, start: Option<&Solution>
                 method: Method::Dense,
                 iterations: it + 1,
                 attainable,
+                levels: Vec::new(),
                 note: None,
                 errors: None,
                 bound: Some(vec![true; keep]),
