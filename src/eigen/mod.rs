@@ -258,7 +258,7 @@ pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Re
     )?;
     let par = par_for_dim(p.dim(), par);
     if let Some(band) = p.band() {
-        let (mut e, v) = crate::linalg::banded::lowest_auto(band.a, band.b, count, None)?;
+        let (mut e, v) = crate::linalg::banded::lowest_auto(band.a, band.b, count, band.lower_bound)?;
         if let Some(q) = p.rayleigh_quotients(v.as_ref()) {
             e = q;
         }

@@ -178,6 +178,9 @@ pub(crate) struct BandLdl {
     kd: usize,
     /// Lower band storage as [`SymBand`]: column j holds d_j, then l_{j+1,j} … l_{j+kd,j}.
     w: Vec<f64>,
+    /// L by rows: row i holds l_{i,i−kd} … l_{i,i−1} (zeros before column 0), for the
+    /// back substitution in axpy form.
+    rows: Vec<f64>,
     inv_d: Vec<f64>,
     /// max_i |c_ii − τ| of the factored matrix (for the backward-error bound).
     max_diag: f64,
@@ -185,7 +188,7 @@ pub(crate) struct BandLdl {
 
 impl BandLdl {
     pub(crate) fn new(n: usize, kd: usize) -> Self {
-        BandLdl { n, kd, w: vec![0.0; n * (kd + 1)], inv_d: vec![0.0; n], max_diag: 0.0 }
+        BandLdl { n, kd, w: vec![0.0; n * (kd + 1)], rows: vec![0.0; n * kd], inv_d: vec![0.0; n], max_diag: 0.0 }
     }
 
     /// Factor C − τI (C of the order and bandwidth given to [`BandLdl::new`]); returns
@@ -226,15 +229,21 @@ impl BandLdl {
             for v in &mut col[1..=m] {
                 *v *= inv;
             }
+            for (i, &l) in col[1..=m].iter().enumerate() {
+                // l_{j+1+i, j} is entry kd − 1 − i of row j + 1 + i.
+                self.rows[(j + 1 + i) * kd + kd - 1 - i] = l;
+            }
         }
         Some(neg)
     }
 
-    /// x ← (L D Lᵀ)⁻¹ x.
+    /// x ← (L D Lᵀ)⁻¹ x: forward and back substitution both as axpys (columns of L,
+    /// then rows of L), so that only one scalar is carried from step to step.
     #[inline(always)]
     fn solve(&self, x: &mut [f64]) {
         let (n, kd) = (self.n, self.kd);
         let ld = kd + 1;
+        let x = &mut x[..n];
         for j in 0..n {
             let m = kd.min(n - 1 - j);
             let xj = x[j];
@@ -243,14 +252,16 @@ impl BandLdl {
                 *xi -= l * xj;
             }
         }
-        for j in (0..n).rev() {
-            let m = kd.min(n - 1 - j);
-            let col = &self.w[j * ld + 1..j * ld + 1 + m];
-            let mut s = 0.0;
-            for (&xi, &l) in x[j + 1..=j + m].iter().zip(col) {
-                s += l * xi;
+        for (xi, d) in x.iter_mut().zip(&self.inv_d) {
+            *xi *= d;
+        }
+        for i in (1..n).rev() {
+            let xi = x[i];
+            let lo = i.saturating_sub(kd);
+            let row = &self.rows[i * kd + kd - (i - lo)..(i + 1) * kd];
+            for (xj, &l) in x[lo..i].iter_mut().zip(row) {
+                *xj -= l * xi;
             }
-            x[j] = x[j] * self.inv_d[j] - s;
         }
     }
 
@@ -262,10 +273,10 @@ impl BandLdl {
         let ld = kd + 1;
         let (y, g) = tmp.split_at_mut(n);
         // y = |D||Lᵀ|𝟙, then g = |L| y.
-        for j in 0..n {
+        for (j, (yj, dj)) in y.iter_mut().zip(&self.inv_d).enumerate() {
             let m = kd.min(n - 1 - j);
             let s: f64 = self.w[j * ld + 1..j * ld + 1 + m].iter().map(|l| l.abs()).sum();
-            y[j] = (1.0 + s) / self.inv_d[j].abs();
+            *yj = (1.0 + s) / dj.abs();
         }
         g[..n].copy_from_slice(y);
         for j in 0..n {
@@ -323,8 +334,9 @@ impl<'a> Solver<'a> {
     fn new(c: &'a SymBand, ldl: &'a BandLdl, sigma: f64, norm: f64, count: usize) -> Self {
         let n = c.n();
         // One run needs about 2–4·(count + GUARD) steps; room for a second run's
-        // locked vectors as well.
-        let ncap = (2 * (count + GUARD) + 4 * (count + GUARD) + 40).min(n) + 1;
+        // locked vectors as well, and at least 300 steps for wanted values inside a
+        // tight cluster (box states of a wide cladding) that need far more.
+        let ncap = (6 * (count + GUARD) + 40).max(300).min(n) + 1;
         Solver {
             c,
             ldl,
@@ -475,19 +487,43 @@ impl<'a> Solver<'a> {
         if !ok {
             return Err(fail("no start vector outside the locked space".into()));
         }
-        let first_check = (want + GUARD + 4).min(jmax);
-        let stride = 3;
+        // Convergence checks (an O(j²) QL each) from 2(want + GUARD) steps on, every
+        // third step (ten levels of the element pencils converge in 25–40 steps), then
+        // every j/10 steps so that long runs spend O(j²·n) in the checks at most.
+        let first_check = (2 * (want + GUARD)).min(jmax);
         let mut tnorm = 0.0_f64;
+        let mut next_check = first_check;
         for j in 0..jmax {
             let col = base + j;
             self.w.copy_from_slice(&self.v[col * n..(col + 1) * n]);
             self.ldl.solve(&mut self.w);
+            // Three-term recurrence, then one classical Gram-Schmidt pass against every
+            // vector so far (locked and Lanczos), and a second one when the first
+            // removed more than 1 − 1/√2 of the norm (Kahan-Parlett "twice is enough",
+            // Parlett 1998 §6.9).
+            if j > 0 {
+                let bp = self.beta[j - 1];
+                for (wi, &q) in self.w.iter_mut().zip(&self.v[(col - 1) * n..col * n]) {
+                    *wi -= bp * q;
+                }
+            }
+            let qj = &self.v[col * n..(col + 1) * n];
+            let mut a = dot(qj, &self.w);
+            for (wi, &q) in self.w.iter_mut().zip(qj) {
+                *wi -= a * q;
+            }
             let cols = &self.v[..(col + 1) * n];
-            cgs_pass(cols, n, col + 1, &mut self.w, &mut self.h);
-            let mut a = self.h[col];
-            cgs_pass(cols, n, col + 1, &mut self.w, &mut self.h);
-            a += self.h[col];
-            let b = norm2(&self.w);
+            let mut b0 = norm2(&self.w);
+            let mut b = b0;
+            for _pass in 0..2 {
+                cgs_pass(cols, n, col + 1, &mut self.w, &mut self.h);
+                a += self.h[col];
+                b = norm2(&self.w);
+                if b >= std::f64::consts::FRAC_1_SQRT_2 * b0 {
+                    break;
+                }
+                b0 = b;
+            }
             if !(a.is_finite() && b.is_finite()) {
                 return Err(fail(format!("non-finite Lanczos coefficients at step {j}")));
             }
@@ -503,7 +539,8 @@ impl<'a> Solver<'a> {
                     *q = x * inv;
                 }
             }
-            if last || (steps >= first_check && (steps - first_check) % stride == 0) {
+            if last || (steps >= first_check && steps >= next_check) {
+                next_check = steps + (steps / 10).max(3);
                 let beta_last = if breakdown { 0.0 } else { b };
                 let out = self.ritz_bounds(steps, beta_last, want, ctol)?;
                 let done = out.converged.iter().take(want).all(|&c| c) && (out.guard.is_some() || steps + base == n);
@@ -663,6 +700,25 @@ fn cgs_pass(v: &[f64], n: usize, m: usize, w: &mut [f64], h: &mut [f64]) {
         }
         c += 1;
     }
+}
+
+/// x·y with eight partial sums.
+#[inline(always)]
+fn dot(x: &[f64], y: &[f64]) -> f64 {
+    const L: usize = 8;
+    let n = x.len().min(y.len());
+    let body = n - n % L;
+    let mut acc = [0.0_f64; L];
+    for i in (0..body).step_by(L) {
+        for l in 0..L {
+            acc[l] += x[i + l] * y[i + l];
+        }
+    }
+    let mut s: f64 = acc.iter().sum();
+    for i in body..n {
+        s += x[i] * y[i];
+    }
+    s
 }
 
 /// Euclidean norm (plain sum of squares: Lanczos vectors are O(1)·θ, far from
