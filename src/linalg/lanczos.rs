@@ -957,6 +957,47 @@ mod tests {
     }
 
     #[test]
+    fn second_difference_closed_form_spectra() {
+        // T = tridiag(−1, 2, −1) of order n has λ_k = 4 sin²(kπ/(2(n+1))), k = 1…n, and
+        // T² (bandwidth 2) has λ_k² (the standard closed form of the discrete Dirichlet
+        // Laplacian, e.g. Strang 2007, *Computational Science and Engineering*, §1.5).
+        // With B = diag(b) and A = B^{1/2} T B^{1/2}, the pencil has the same spectrum.
+        // Both are positive definite: lower bound 0.
+        let n = 200;
+        let exact: Vec<f64> = (1..=n).map(|k| 4.0 * (k as f64 * std::f64::consts::PI / (2.0 * (n + 1) as f64)).sin().powi(2)).collect();
+        let b = random_diag(n, 41);
+        for squared in [false, true] {
+            let kd = if squared { 2 } else { 1 };
+            let mut a = SymBand::zeros(n, kd).unwrap();
+            let t = |i: usize, j: usize| -> f64 {
+                let d = i.abs_diff(j);
+                match (squared, d) {
+                    (false, 0) => 2.0,
+                    (false, 1) => -1.0,
+                    (true, 0) if i == 0 || i == n - 1 => 5.0,
+                    (true, 0) => 6.0,
+                    (true, 1) => -4.0,
+                    (true, 2) => 1.0,
+                    _ => 0.0,
+                }
+            };
+            for j in 0..n {
+                for i in j..(j + kd + 1).min(n) {
+                    a.add(i, j, t(i, j) * (b[i] * b[j]).sqrt()).unwrap();
+                }
+            }
+            let (vals, v, rep) = lowest_with_report(&a, &b, 12, 0.0).unwrap();
+            assert!(rep.margin > 0.0 && rep.below_tau == 12);
+            for (k, l) in vals.iter().enumerate() {
+                let e = if squared { exact[k] * exact[k] } else { exact[k] };
+                // λ_1 of T² is 6e-8 while ‖C‖ ≈ 16: absolute accuracy ε‖C‖.
+                assert!((l - e).abs() <= 1e-13 * 16.0 + 1e-12 * e, "squared {squared}, k {k}: {l} vs {e}");
+            }
+            compare_dense(&a, &b, &vals, &v, 1e-12, f64::INFINITY);
+        }
+    }
+
+    #[test]
     fn indefinite_matrix_with_a_valid_bound() {
         let a = random_band(80, 6, 11, 0.0);
         let b = random_diag(80, 12);

@@ -386,10 +386,15 @@ mod tests {
         // Ground state ∝ sin(πx/L), normalised: ψ(L/2)² = 2/L.
         let psi = eb.evaluate(vecs.as_ref(), &[l / 2.0]).unwrap();
         assert!((psi[(0, 0)].abs() - (2.0 / l).sqrt()).abs() < 1e-10);
-        // The dense reference gives the same energies.
+        // The dense reference gives the same energies, and so does the strict
+        // shift-invert path (no fallback: an error if it cannot certify its result).
         let (dv, _) = pencil.lowest_dense(10).unwrap();
+        let (si, _) = pencil.lowest_shift_invert(10).unwrap();
         for k in 0..10 {
             assert!(rel(vals[k], dv[k]) < 1e-13);
+            assert!(rel(si[k], dv[k]) < 1e-13);
+            let n = (k + 1) as f64;
+            assert!(rel(si[k], n * n * PI * PI / (2.0 * l * l)) < 1e-12);
         }
     }
 
