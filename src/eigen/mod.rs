@@ -262,6 +262,16 @@ pub fn residuals(p: &dyn DiscreteProblem, energies: &[f64], vectors: &Mat<f64>) 
 /// full dense solver otherwise. Refuses up front (before allocating) when the
 /// matrices would not fit in memory.
 pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Result<(Vec<f64>, Mat<f64>)> {
+    // Banded pencils never form N×N arrays beyond the dense subset solver's below
+    // banded::DENSE_BELOW (≤ 1.3 MB): no memory check, which reads /proc/meminfo on
+    // every call (a file read per eigensolve, in the inner loop of stack sweeps).
+    if let Some(band) = p.band() {
+        let (mut e, v) = crate::linalg::banded::lowest_auto(band.a, band.b, count, band.lower_bound)?;
+        if let Some(q) = p.rayleigh_quotients(v.as_ref()) {
+            e = q;
+        }
+        return Ok((e, v));
+    }
     let n = p.dim() as u64;
     let generalized = p.structure().generalized;
     // Matrix, eigenvectors and workspace: about three N×N arrays (five with B).
@@ -271,13 +281,6 @@ pub fn dense_lowest(p: &dyn DiscreteProblem, count: usize, par: faer::Par) -> Re
         "the dense path needs about three N×N float64 arrays (five for a heterostructure); use method=\"iterative\" for the lowest states of a large grid",
     )?;
     let par = par_for_dim(p.dim(), par);
-    if let Some(band) = p.band() {
-        let (mut e, v) = crate::linalg::banded::lowest_auto(band.a, band.b, count)?;
-        if let Some(q) = p.rayleigh_quotients(v.as_ref()) {
-            e = q;
-        }
-        return Ok((e, v));
-    }
     if generalized {
         let b = p.dense_b().ok_or_else(|| crate::error::NumericalError::EigenFailed("generalized problem without B".into()))?;
         return generalized::lowest_generalized(p.dense_a(), b.as_ref(), count, par);

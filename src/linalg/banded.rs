@@ -202,7 +202,7 @@ impl SymBand {
     }
 
     /// D A D for the diagonal D = diag(s).
-    fn scaled(&self, s: &[f64]) -> SymBand {
+    pub(super) fn scaled(&self, s: &[f64]) -> SymBand {
         let mut c = self.clone();
         let kd = self.kd;
         for j in 0..self.n {
@@ -215,7 +215,7 @@ impl SymBand {
 }
 
 /// Check the pencil and `count`; returns s = B^{-1/2}.
-fn check_pencil(a: &SymBand, b: &[f64], count: usize) -> Result<Vec<f64>, InputError> {
+pub(super) fn check_pencil(a: &SymBand, b: &[f64], count: usize) -> Result<Vec<f64>, InputError> {
     let n = a.n;
     if b.len() != n {
         return Err(InputError::Length { argument: "b".into(), expected: n, got: b.len() });
@@ -367,10 +367,23 @@ pub fn lowest_dense(a: &SymBand, b: &[f64], count: usize) -> Result<(Vec<f64>, M
 /// band reduction wins from n ≈ 400 (5–7 vs 9–12 ms at 500, 0.11 vs 2.2 s at 2000).
 pub const DENSE_BELOW: usize = 400;
 
-/// The lowest `count` pairs of the pencil: the band path from [`DENSE_BELOW`] on, the
-/// dense subset solver on C = B^{-1/2} A B^{-1/2} below (falling back to the band path
-/// if its verification fails). Vectors B-orthonormal.
-pub fn lowest_auto(a: &SymBand, b: &[f64], count: usize) -> Result<(Vec<f64>, Mat<f64>), Error> {
+/// The lowest `count` pairs of the pencil, vectors B-orthonormal.
+///
+/// With `lower_bound` (a value at or below the lowest eigenvalue, see
+/// [`super::lanczos::lowest`] for when a caller knows one) and count + 1 < n, first the
+/// certified shift-invert Lanczos solver [`super::lanczos`]; if it errs (wrong bound, no
+/// convergence, failed verification or certificate), or without a bound: the band path
+/// from [`DENSE_BELOW`] on, the dense subset solver on C = B^{-1/2} A B^{-1/2} below
+/// (falling back to the band path if its verification fails).
+pub fn lowest_auto(a: &SymBand, b: &[f64], count: usize, lower_bound: Option<f64>) -> Result<(Vec<f64>, Mat<f64>), Error> {
+    if let Some(lb) = lower_bound.filter(|lb| lb.is_finite()) {
+        check_pencil(a, b, count)?;
+        if count + 1 < a.n {
+            if let Ok(r) = super::lanczos::lowest(a, b, count, lb) {
+                return Ok(r);
+            }
+        }
+    }
     if a.n >= DENSE_BELOW || 4 * count > a.n {
         return lowest(a, b, count);
     }
@@ -696,6 +709,23 @@ fn inverse_iteration(c: &SymBand, vals: &[f64], norm: f64) -> Mat<f64> {
 /// ‖C v_j − λ_j v_j‖ ≤ tol·√n·‖C‖ and |VᵀV − I| ≤ tol·√n, else an error naming the
 /// failure; returns the largest ‖C v − λ v‖ / (√n·‖C‖).
 fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, NumericalError> {
+    verify_report(c, vals, v, norm).map(|r| r.worst)
+}
+
+/// What [`verify_report`] measured on a set of pairs that passed.
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Verified {
+    /// max_j ‖C v_j − λ_j v_j‖ / (√n·‖C‖).
+    pub worst: f64,
+    /// ‖C V − V diag(λ)‖_F (absolute).
+    pub frobenius: f64,
+    /// max_{i,j} |(VᵀV − I)_ij|.
+    pub orthogonality: f64,
+}
+
+/// The check of [`verify`] (same tolerances), returning the residual matrix's Frobenius
+/// norm and the largest orthogonality defect as well.
+pub(super) fn verify_report(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<Verified, NumericalError> {
     let n = c.n;
     let k = vals.len();
     let sq = (n as f64).sqrt();
@@ -703,6 +733,7 @@ fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, Num
     let mut y = vec![0.0; n];
     let mut x = vec![0.0; n];
     let mut worst = 0.0_f64;
+    let mut frob2 = 0.0_f64;
     for j in 0..k {
         for (i, xi) in x.iter_mut().enumerate() {
             *xi = v[(i, j)];
@@ -710,6 +741,7 @@ fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, Num
         c.mul_vec(&x, &mut y);
         let r = (0..n).map(|i| (y[i] - vals[j] * x[i]).powi(2)).sum::<f64>().sqrt();
         worst = worst.max(r / (sq * norm.max(f64::MIN_POSITIVE)));
+        frob2 += r * r;
         if r.is_nan() || r > rtol {
             return Err(NumericalError::EigenFailed(format!(
                 "banded eigenvectors: residual {r:e} of pair {j} exceeds {rtol:e}"
@@ -718,6 +750,7 @@ fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, Num
     }
     let otol = VERIFY_TOL * sq;
     let g = v.transpose() * v;
+    let mut orthogonality = 0.0_f64;
     for j in 0..k {
         for i in 0..=j {
             let dev = (g[(i, j)] - if i == j { 1.0 } else { 0.0 }).abs();
@@ -726,9 +759,10 @@ fn verify(c: &SymBand, vals: &[f64], v: &Mat<f64>, norm: f64) -> Result<f64, Num
                     "banded eigenvectors: |v_{i}·v_{j} − δ| = {dev:e} exceeds {otol:e}"
                 )));
             }
+            orthogonality = orthogonality.max(dev);
         }
     }
-    Ok(worst)
+    Ok(Verified { worst, frobenius: frob2.sqrt(), orthogonality })
 }
 
 fn norm2(x: &[f64]) -> f64 {

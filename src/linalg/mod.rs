@@ -5,6 +5,8 @@
 //!   diagonal B (band → tridiagonal by Givens rotations, Sturm bisection, back-transformation).
 //! * [`dense`]: all eigenpairs of a dense symmetric matrix (faer, with a backward-error
 //!   probe and a QR fallback), the lowest pairs of a matrix or of independent blocks.
+//! * [`lanczos`]: the lowest pairs of a banded pencil by certified shift-invert Lanczos,
+//!   given a lower bound of the spectrum.
 //! * [`subset`]: the lowest pairs only (tridiagonalisation, Sturm multisection,
 //!   inverse iteration, verification).
 //! * [`generalized`]: A x = λ B x with B symmetric positive definite, by Cholesky reduction.
@@ -14,6 +16,7 @@
 pub mod banded;
 pub mod dense;
 pub mod generalized;
+pub mod lanczos;
 pub mod lobpcg;
 pub mod rng;
 pub mod subset;

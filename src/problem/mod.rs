@@ -52,6 +52,10 @@ pub type Interpolator = Box<dyn Fn(&[f64], usize) -> Vec<f64> + Send + Sync>;
 pub struct BandPencil<'a> {
     pub a: &'a SymBand,
     pub b: &'a [f64],
+    /// A value ℓ with xᵀAx ≥ ℓ·xᵀBx for every x (at or below the lowest eigenvalue),
+    /// when the problem knows one from its structure; it lets the eigensolver use
+    /// shift-invert Lanczos ([`crate::linalg::lanczos`]).
+    pub lower_bound: Option<f64>,
 }
 
 /// A coarser discretisation of the same problem and the map of its vectors back.
