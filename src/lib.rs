@@ -36,6 +36,7 @@ pub mod model;
 pub mod observables;
 pub mod problem;
 pub mod propagate;
+pub mod transport;
 
 mod python;
 

@@ -1,6 +1,6 @@
 """The layering rule of the crate, checked on the Rust sources (DEVELOPERS.md, "Layout").
 
-Data flows one way: model → basis → problem → eigen (and propagate) → observables, with
+Data flows one way: model → basis → problem → eigen (and propagate, transport) → observables, with
 linalg a leaf that every layer may call and that names nothing physical. The check
 reads the `crate::<module>` paths each top-level module uses outside its test code.
 """
@@ -21,6 +21,7 @@ ALLOWED = {
     "eigen": {"model", "basis", "problem", "linalg"},
     "observables": {"eigen", "problem", "basis", "model", "linalg"},
     "propagate": {"model", "basis", "problem", "linalg"},
+    "transport": {"model", "basis", "problem", "linalg"},
 }
 
 
