@@ -24,6 +24,8 @@
 
 pub mod bands;
 pub mod mesh;
+pub mod resonances;
+pub mod transmission;
 
 use crate::error::InputError;
 use crate::model::stack::Heterostructure;
