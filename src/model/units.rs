@@ -29,6 +29,8 @@ pub mod codata2022 {
     pub const HARTREE: f64 = 4.359_744_722_206e-18;
     /// Bohr radius, m.
     pub const BOHR_RADIUS: f64 = 5.291_772_105_44e-11;
+    /// Boltzmann constant k_B, J/K (exact since 2019).
+    pub const BOLTZMANN: f64 = 1.380_649e-23;
 }
 
 /// A unit system. Parsed from a string only at the Python edge.

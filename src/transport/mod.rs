@@ -23,7 +23,9 @@
 //! accurate one, which is returned).
 
 pub mod bands;
+pub mod current;
 pub mod mesh;
+pub mod quadrature;
 pub mod resonances;
 pub mod transmission;
 
