@@ -12,6 +12,7 @@ mod hamiltonian;
 mod layers;
 mod materials;
 mod propagate;
+mod transport;
 
 use pyo3::prelude::*;
 
