@@ -67,6 +67,9 @@ pub enum NumericalError {
     Diverged(String),
     /// The dense eigensolver failed (should not happen for finite symmetric input).
     EigenFailed(String),
+    /// An adaptive quadrature used `pieces` intervals without meeting its relative
+    /// tolerance `tol`; `value` and `error` are its last estimates.
+    QuadratureNotConverged { pieces: usize, tol: f64, value: f64, error: f64 },
 }
 
 impl fmt::Display for NumericalError {
@@ -90,6 +93,11 @@ impl fmt::Display for NumericalError {
             }
             NumericalError::Diverged(s) => write!(f, "{s}"),
             NumericalError::EigenFailed(s) => write!(f, "dense eigensolver failed: {s}"),
+            NumericalError::QuadratureNotConverged { pieces, tol, value, error } => write!(
+                f,
+                "the energy integral did not reach the relative accuracy {tol:e} with {pieces} intervals \
+                 (estimate {value:e}, error estimate {error:e}); loosen `accuracy`"
+            ),
         }
     }
 }

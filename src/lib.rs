@@ -41,6 +41,7 @@ pub mod observables;
 pub mod problem;
 pub mod propagate;
 pub mod selfconsistent;
+pub mod transport;
 
 mod python;
 

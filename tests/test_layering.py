@@ -1,6 +1,6 @@
 """The layering rule of the crate, checked on the Rust sources (DEVELOPERS.md, "Layout").
 
-Data flows one way: model → basis → problem → eigen (and propagate) → observables, with
+Data flows one way: model → basis → problem → eigen (and propagate, transport) → observables, with
 linalg a leaf that every layer may call and that names nothing physical. The check
 reads the `crate::<module>` paths each top-level module uses outside its test code.
 """
@@ -22,6 +22,7 @@ ALLOWED = {
     "observables": {"eigen", "problem", "basis", "model", "linalg"},
     "propagate": {"model", "basis", "problem", "linalg"},
     "selfconsistent": {"model", "basis", "problem", "linalg", "eigen"},
+    "transport": {"model", "basis", "problem", "linalg"},
 }
 
 

@@ -741,6 +741,108 @@ class Heterostructure:
             On an ``ElementBasis``; ``errors`` and ``bound`` are set, wavefunctions evaluate
             anywhere (0 beyond the cladding depth, where the tails are below the accuracy).
         """
+    def bands(self, q: Union[float, npt.ArrayLike], count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
+        """Minibands E_n(q) (meV) of the infinite superlattice whose period is this stack.
+
+        Bloch-periodic spectral elements ψ(z + d) = e^{iqd} ψ(z), d = ``total_thickness``
+        (the last node of the period is the first times the Bloch phase: a Hermitian
+        pencil). Bands are converged at q = 0 and π/d (orders p and p + 2 agree to
+        ``accuracy`` relative to max(|E|, E − V_min)).
+
+        Parameters
+        ----------
+        q : float or array_like
+            Bloch wavevectors (1/nm). E(q) is periodic with period 2π/d and even, so every q
+            is folded into the first zone: q → |q − (2π/d)·round(qd/2π)| (no error).
+        count : int
+            Number of bands, 1 ≤ count ≤ 10000.
+        accuracy : float
+            Relative accuracy in [1e-13, 1e-3].
+
+        Returns
+        -------
+        ndarray, shape (len(q), count)
+            Energies, ascending in each row (one row for a scalar q).
+
+        Raises
+        ------
+        ValueError
+            A field (``field_kv_cm`` ≠ 0 breaks the periodicity), non-parabolic layers,
+            non-finite q, count or accuracy out of range.
+        """
+    def minibands(self, count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
+        """Bottom and top (meV) of each of the lowest ``count`` minibands, shape (count, 2),
+        from q = 0 and q = π/d (a 1D band is monotonic in |q| between them)."""
+    def miniband_widths(self, count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
+        """Widths (meV) of the lowest ``count`` minibands, top − bottom, shape (count,)."""
+    def band_mass(self, band: Optional[int] = None, *, accuracy: float = 1e-10) -> float:
+        """Effective mass m* (m_e) at the bottom of miniband ``band`` (None: band 0).
+
+        m* = 2(ħ²/2m_e)/(d²E/dq²), the curvature from second-order perturbation theory in
+        the Bloch phase on the discretised bands. The bottom of band n lies at q = 0 for
+        even n and at q = π/d for odd n. A band edge touching its neighbour (closed gap) is
+        a ValueError.
+        """
+    def transmission(self, energies: Union[float, npt.ArrayLike], *, reflection: bool = False,
+                     accuracy: float = 1e-10) -> Union[float, Tuple[float, float], npt.NDArray[np.float64],
+                                                       Tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]]:
+        """Transmission probability T(E) between the claddings, which act as leads.
+
+        The quantum transmitting boundary method (Lent & Kirkner 1990) on spectral elements
+        covering the stack: plane waves in the flat leads (k = √(m(E − V)/(ħ²/2m_e))),
+        BenDaniel-Duke matching, the field (if any) linear inside the stack, so the leads
+        may sit at different band edges. T = (k_R/m_R)/(k_L/m_L)·|t|², R = |r|², T + R = 1.
+        Where only one lead is open T = 0 and R = 1. The mesh is converged for the highest
+        energy asked (orders p and p + 2 agree on T to ``accuracy``, or on the energy of a
+        narrow resonance to ``accuracy`` relative).
+
+        Parameters
+        ----------
+        energies : float or array_like
+            Energies (meV), at or above the lower lead band edge min(cladding_edges).
+        reflection : bool
+            Also return R.
+        accuracy : float
+            In [1e-13, 1e-3].
+
+        Returns
+        -------
+        T, or (T, R)
+            Floats for a scalar energy, arrays of len(energies) otherwise.
+
+        Raises
+        ------
+        ValueError
+            An energy below both leads or not finite; non-parabolic layers.
+        """
+    def current_density(self, bias: float, temperature: float, fermi_level: float, *, accuracy: float = 1e-8,
+                        mesh_accuracy: float = 1e-10) -> float:
+        """Tsu-Esaki (1973) tunnelling current density J (A/cm²) with Fermi-Dirac leads.
+
+        J = (e m kT/(2π²ħ³)) ∫ T(E, V) ln[(1 + e^{(μ_L − E)/kT})/(1 + e^{(μ_R − E)/kT})] dE, m the
+        left (emitter) lead mass. The bias V (volts) is the field F = −10⁴·V/L kV/cm (L in nm)
+        across the stack, replacing ``field_kv_cm``: the right lead sits 1000·V meV below
+        the left one. Both leads hold ``fermi_level`` E_F above their band edge:
+        μ_L = V_L + E_F, μ_R = μ_L − 1000·V. The integral runs from max(V_L, V_R) to
+        max(μ_L, μ_R) + 40 kT, cut at every pole found and at E_r ± Γ·{½, 5, 50}, by adaptive
+        Gauss-Legendre quadrature whose summed error estimates are ≤ ``accuracy``·|J|.
+
+        Parameters
+        ----------
+        bias : float
+            Volts (finite).
+        temperature : float
+            Kelvin, > 0.
+        fermi_level : float
+            E_F − E_c in both leads (meV).
+        accuracy : float
+            Relative tolerance of the energy integral, in [1e-10, 1e-2].
+        mesh_accuracy : float
+            Accuracy of T(E) (see ``transmission``), in [1e-13, 1e-3].
+        """
+    def current_voltage(self, biases: npt.ArrayLike, temperature: float, fermi_level: float, *,
+                        accuracy: float = 1e-8, mesh_accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
+        """``current_density`` at every bias (V), in parallel over the biases; shape (len(biases),)."""
     def __len__(self) -> int: ...
 
 @final

@@ -7,7 +7,8 @@ from typing import Optional, Sequence
 import numpy as np
 
 __all__ = ["plot_levels", "plot_density", "plot_convergence", "plot_potential_stack", "plot_band_diagram",
-           "plot_stark_fan", "plot_self_consistent", "plot_density_slice", "plot_column_density"]
+           "plot_stark_fan", "plot_self_consistent", "plot_density_slice", "plot_column_density", "plot_bands",
+           "plot_transmission", "plot_current_voltage"]
 
 
 def _axes(ax):
@@ -569,4 +570,140 @@ def plot_column_density(data, record: int = -1, *, axis="z", grid=None, ax=None,
     rest = [i for i in range(ndim) if i != a]
     _draw(ax, column, [np.asarray(grid.axes[i].x) for i in rest], [_AXES[i] for i in rest], units, log=log,
           vmin=vmin, cmap=cmap, colorbar=colorbar, label=f"∫|ψ|² d{_AXES[a]}")
+    return ax
+
+
+def plot_bands(stack, count: int = 3, ax=None, *, q: Optional[Sequence[float]] = None, points: int = 121,
+               extended: bool = False, gaps: bool = True):
+    """Minibands E_n(q) of the superlattice whose period is ``stack`` (``stack.bands``).
+
+    Parameters
+    ----------
+    stack : Heterostructure
+        One period (no field).
+    count : int
+        Number of bands.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    q : array_like, optional
+        Wavevectors (1/nm); default ``points`` values over the first zone [−π/d, π/d].
+    points : int
+        Number of default wavevectors.
+    extended : bool
+        Draw the default q over two zones [−2π/d, 2π/d] (the bands are periodic).
+    gaps : bool
+        Shade the minigaps between consecutive bands.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        q (1/nm) horizontal, energy (meV) vertical.
+    """
+    d = float(stack.total_thickness)
+    if q is None:
+        zone = 2.0 if extended else 1.0
+        q = np.linspace(-zone * np.pi / d, zone * np.pi / d, int(points))
+    q = np.asarray(q, dtype=float)
+    e = np.asarray(stack.bands(q, count))
+    ax = _axes(ax)
+    for n in range(e.shape[1]):
+        ax.plot(q, e[:, n], lw=1.4, label=f"band {n}")
+    if gaps and e.shape[1] > 1:
+        edges = np.asarray(stack.minibands(count))
+        for n in range(len(edges) - 1):
+            lo, hi = edges[n, 1], edges[n + 1, 0]
+            if hi > lo:
+                ax.axhspan(lo, hi, color="0.85", lw=0)
+    for x in (-np.pi / d, np.pi / d):
+        if q.min() <= x <= q.max():
+            ax.axvline(x, color="0.6", lw=0.6, ls=":")
+    ax.set_xlim(q.min(), q.max())
+    ax.set_xlabel("q (1/nm)")
+    ax.set_ylabel("energy (meV)")
+    return ax
+
+
+def plot_transmission(stack, energies: Sequence[float], ax=None, *, log: bool = True, reflection: bool = False):
+    """Transmission T(E) between the claddings of ``stack`` (``stack.transmission``).
+
+    Parameters
+    ----------
+    stack : Heterostructure
+        The stack (its claddings are the leads).
+    energies : array_like
+        Energies (meV), at or above the lower lead band edge.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    log : bool
+        Logarithmic T axis.
+    reflection : bool
+        Also draw R(E).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        Energy (meV) horizontal, probability vertical.
+    """
+    e = np.asarray(energies, dtype=float)
+    t, r = stack.transmission(e, reflection=True)
+    ax = _axes(ax)
+    (ax.semilogy if log else ax.plot)(e, np.maximum(t, 1e-300) if log else t, lw=1.3, label="T")
+    if reflection:
+        ax.plot(e, r, lw=1.0, ls="--", label="R")
+    ax.set_xlabel("energy (meV)")
+    ax.set_ylabel("transmission")
+    if reflection:
+        ax.legend()
+    return ax
+
+
+def plot_current_voltage(biases: Sequence[float], current: Sequence[float], ax=None, *, ndr: bool = True,
+                         log: bool = False):
+    """Current density against bias (e.g. from ``stack.current_voltage``), with regions of
+    negative differential resistance (dJ/dV < 0) shaded.
+
+    Parameters
+    ----------
+    biases : array_like
+        Biases (V), ascending.
+    current : array_like
+        Current densities (A/cm²), one per bias.
+    ax : matplotlib Axes, optional
+        Axes to draw into; a new figure is made if omitted.
+    ndr : bool
+        Shade the intervals where J falls while V rises.
+    log : bool
+        Logarithmic |J| axis.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        Bias (V) horizontal, J (A/cm²) vertical; ``ax.specwell_ndr`` lists the shaded (V_a, V_b).
+    """
+    v = np.asarray(biases, dtype=float)
+    j = np.asarray(current, dtype=float)
+    if v.ndim != 1 or j.shape != v.shape:
+        raise ValueError(f"`current` must have one value per bias ({v.shape}); got shape {j.shape}")
+    ax = _axes(ax)
+    if log:
+        ax.semilogy(v, np.abs(j), marker="o", ms=3, lw=1.3)
+    else:
+        ax.plot(v, j, marker="o", ms=3, lw=1.3)
+    spans = []
+    if ndr and len(v) > 1:
+        falling = (np.diff(j) < 0) & (np.diff(v) > 0)
+        k = 0
+        while k < len(falling):
+            if falling[k]:
+                start = k
+                while k < len(falling) and falling[k]:
+                    k += 1
+                spans.append((float(v[start]), float(v[k])))
+            else:
+                k += 1
+        for a, b in spans:
+            ax.axvspan(a, b, color="C3", alpha=0.15, lw=0)
+    ax.specwell_ndr = spans
+    ax.set_xlabel("bias (V)")
+    ax.set_ylabel("current density (A/cm²)")
     return ax

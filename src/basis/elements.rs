@@ -18,9 +18,15 @@
 //! (ψ(b_0) = ψ(b_m) = 0), so the unknowns are the global nodes 1..n_el·p − 1 and
 //! unknown k is global node k + 1: the dimension is n_el·p − 1. The unknowns are the
 //! nodal values ψ(x_k) (Lagrange basis), so a coefficient vector is also a sample of ψ.
-//! [`ElementBasis::global_index`] is the only place where this map is defined; a
-//! Bloch-periodic variant replaces it by one that identifies the last node with the
-//! first and multiplies that coupling by e^{iqL} (which needs a Hermitian band type).
+//! [`ElementBasis::global_index`] is the only place where this map is defined. Two
+//! variants serve open and periodic structures ([`crate::basis`] users in transport):
+//! * [`ElementBasis::open_index`] keeps both end nodes (natural, Neumann-type ends where
+//!   leads are attached, e.g. by the quantum transmitting boundary method): unknown
+//!   k = global node k, dimension n_el·p + 1;
+//! * [`ElementBasis::periodic_index`] identifies the last node with the first (one
+//!   period of a Bloch-periodic function, ψ(b_m) = e^{iθ}ψ(b_0)): unknown k = global
+//!   node k for k < n_el·p, the last node maps to unknown 0 and is flagged so that the
+//!   caller multiplies its coefficient by the Bloch phase e^{iθ}; dimension n_el·p.
 //!
 //! ## Sample points
 //! A potential V(x) and the stiffness weight w(x) = 1/m(x) are sampled on the GLL
@@ -274,6 +280,32 @@ impl ElementBasis {
         }
     }
 
+    /// The unknown of local node `i` of element `e` with both end nodes kept (open
+    /// ends): e·p + i, in 0..=n_el·p; `None` for out-of-range arguments.
+    pub fn open_index(&self, e: usize, i: usize) -> Option<usize> {
+        let p = self.order();
+        if e >= self.elements.len() || i > p {
+            return None;
+        }
+        Some(e * p + i)
+    }
+
+    /// The unknown of local node `i` of element `e` on one Bloch period (the last node
+    /// identified with the first) and whether it is that wrapped last node, whose value
+    /// is e^{iθ} times unknown 0; `None` for out-of-range arguments. Dimension n_el·p.
+    pub fn periodic_index(&self, e: usize, i: usize) -> Option<(usize, bool)> {
+        let p = self.order();
+        if e >= self.elements.len() || i > p {
+            return None;
+        }
+        let g = e * p + i;
+        if g == self.elements.len() * p {
+            Some((0, true))
+        } else {
+            Some((g, false))
+        }
+    }
+
     /// The element containing x: the one with a_e ≤ x < b_e, the last one at x = b_m,
     /// `None` outside [b_0, b_m] or for NaN. At an element edge this is the element to
     /// the right.
@@ -422,6 +454,14 @@ mod tests {
         assert_eq!(eb.global_index(0, 4), Some(3));
         assert_eq!(eb.global_index(1, 0), Some(3));
         assert_eq!(eb.global_index(3, 4), None);
+        assert_eq!(eb.open_index(0, 0), Some(0));
+        assert_eq!(eb.open_index(3, 4), Some(16));
+        assert_eq!(eb.open_index(4, 0), None);
+        assert_eq!(eb.periodic_index(0, 0), Some((0, false)));
+        assert_eq!(eb.periodic_index(1, 0), Some((4, false)));
+        assert_eq!(eb.periodic_index(3, 3), Some((15, false)));
+        assert_eq!(eb.periodic_index(3, 4), Some((0, true)));
+        assert_eq!(eb.periodic_index(0, 5), None);
         assert_eq!(eb.elements()[1].a, 0.0);
         assert_eq!(eb.elements()[3].b, 3.0);
         // Nudged ends: inside their element, one ulp away.

@@ -10,6 +10,7 @@
 //! * [`subset`]: the lowest pairs only (tridiagonalisation, Sturm multisection,
 //!   inverse iteration, verification).
 //! * [`generalized`]: A x = λ B x with B symmetric positive definite, by Cholesky reduction.
+//! * [`hermitian`]: all eigenpairs of a dense complex Hermitian matrix (QR path).
 //! * [`lobpcg`]: the matrix-free block eigensolver and its operator/preconditioner traits.
 //! * [`rng`]: the one pseudo-random generator.
 
@@ -17,6 +18,7 @@ pub mod banded;
 pub mod dense;
 pub mod generalized;
 pub mod lanczos;
+pub mod hermitian;
 pub mod lobpcg;
 pub mod rng;
 pub mod subset;

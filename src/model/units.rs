@@ -40,6 +40,8 @@ pub mod codata2022 {
     pub const ATOMIC_MASS_CONSTANT: f64 = 1.660_539_068_92e-27;
     /// Atomic unit of time ħ/E_h, s.
     pub const ATOMIC_TIME: f64 = HBAR / HARTREE;
+    /// Boltzmann constant k_B, J/K (exact since 2019).
+    pub const BOLTZMANN: f64 = 1.380_649e-23;
 }
 
 /// A unit system. Parsed from a string only at the Python edge.

@@ -47,28 +47,14 @@ pub fn assemble(basis: &ElementBasis, c: f64, stiffness_weight: &[f64], potentia
     let n = basis.size();
     let mut a = SymBand::zeros(n, p)?;
     let mut b = vec![0.0; n];
-    let omega = basis.gll().weights();
     let d = basis.gll().differentiation();
     // s_q = (2/h)·c·w_q·ω_q: the stiffness weights of an element's quadrature points.
     let mut s = vec![0.0; m];
     let mut kloc = vec![0.0; m * m];
     let mut stiff = Vec::with_capacity(np);
-    for (e, el) in basis.elements().iter().enumerate() {
-        for q in 0..m {
-            s[q] = 2.0 / el.h * c * stiffness_weight[e * m + q] * omega[q];
-            stiff.push(s[q]);
-        }
-        // K_ij = Σ_q s_q D_qi D_qj (lower triangle).
-        kloc.fill(0.0);
-        for q in 0..m {
-            let row = &d[q * m..(q + 1) * m];
-            for i in 0..m {
-                let f = s[q] * row[i];
-                for j in 0..=i {
-                    kloc[i * m + j] += f * row[j];
-                }
-            }
-        }
+    for e in 0..basis.elements().len() {
+        element_stiffness(basis, e, c, stiffness_weight, &mut s, &mut kloc);
+        stiff.extend_from_slice(&s);
         for i in 0..m {
             let Some(gi) = basis.global_index(e, i) else { continue };
             for j in 0..=i {
@@ -89,6 +75,39 @@ pub fn assemble(basis: &ElementBasis, c: f64, stiffness_weight: &[f64], potentia
         massv: basis.quadrature_weights().iter().zip(potential).map(|(w, v)| w * v).collect(),
         diff: d.to_vec(),
     })
+}
+
+/// The stiffness of element `e` before any numbering: the weights
+/// `s[q]` = (2/h_e)·c·w_q·ω_q of its GLL points and the full symmetric (p+1)×(p+1) matrix
+/// `k[i·(p+1) + j]` = Σ_q s_q D_qi D_qj (row-major), with `stiffness_weight` w sampled on
+/// the basis points. The weak form of [`assemble`] is Σ_e of these plus the diagonal
+/// (h_e/2)·ω_q·(V_q − E); numberings other than the Dirichlet one (open ends, Bloch
+/// periods: [`ElementBasis::open_index`], [`ElementBasis::periodic_index`]) assemble
+/// from here. `s` must have p + 1 entries and `k` (p+1)² (internal callers; no checks
+/// beyond the slice bounds).
+pub fn element_stiffness(basis: &ElementBasis, e: usize, c: f64, stiffness_weight: &[f64], s: &mut [f64], k: &mut [f64]) {
+    let m = basis.order() + 1;
+    let el = basis.elements()[e];
+    let omega = basis.gll().weights();
+    let d = basis.gll().differentiation();
+    for q in 0..m {
+        s[q] = 2.0 / el.h * c * stiffness_weight[e * m + q] * omega[q];
+    }
+    k[..m * m].fill(0.0);
+    for q in 0..m {
+        let row = &d[q * m..(q + 1) * m];
+        for i in 0..m {
+            let f = s[q] * row[i];
+            for j in 0..=i {
+                k[i * m + j] += f * row[j];
+            }
+        }
+    }
+    for i in 0..m {
+        for j in 0..i {
+            k[j * m + i] = k[i * m + j];
+        }
+    }
 }
 
 /// The discretised pencil A u = E B u of [`assemble`].

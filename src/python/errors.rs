@@ -50,6 +50,14 @@ pub fn to_py(py: Python<'_>, e: Error) -> PyErr {
             let _ = value.setattr("iterations", steps);
             err
         }
+        Error::Numerical(NumericalError::QuadratureNotConverged { pieces, value, error, .. }) => {
+            let err = ConvergenceError::new_err(e.to_string());
+            let v = err.value(py);
+            let _ = v.setattr("energies", vec![value]);
+            let _ = v.setattr("residuals", vec![error]);
+            let _ = v.setattr("iterations", pieces);
+            err
+        }
         Error::Numerical(n) => PyRuntimeError::new_err(n.to_string()),
     }
 }

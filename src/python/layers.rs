@@ -208,6 +208,52 @@ impl PyHeterostructure {
         let s = py.detach(move || crate::selfconsistent::solve(&stack, &o)).py(py)?;
         super::selfconsistent::wrap(py, s)
     }
+    /// Minibands E_n(q) of the superlattice with this stack as one period (see `_core.pyi`).
+    #[pyo3(signature = (q, count, *, accuracy=1e-10))]
+    fn bands<'py>(&self, py: Python<'py>, q: &Bound<'py, PyAny>, count: &Bound<'py, PyAny>, accuracy: f64) -> PyResult<Bound<'py, numpy::PyArray2<f64>>> {
+        super::transport::bands(py, &self.inner, q, count, accuracy)
+    }
+    /// Bottom and top of each of the lowest `count` minibands (meV), shape (count, 2).
+    #[pyo3(signature = (count, *, accuracy=1e-10))]
+    fn minibands<'py>(&self, py: Python<'py>, count: &Bound<'py, PyAny>, accuracy: f64) -> PyResult<Bound<'py, numpy::PyArray2<f64>>> {
+        super::transport::minibands(py, &self.inner, count, accuracy)
+    }
+    /// Widths (meV) of the lowest `count` minibands.
+    #[pyo3(signature = (count, *, accuracy=1e-10))]
+    fn miniband_widths<'py>(&self, py: Python<'py>, count: &Bound<'py, PyAny>, accuracy: f64) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        super::transport::miniband_widths(py, &self.inner, count, accuracy)
+    }
+    /// Effective mass (m_e) at the bottom of miniband `band` (see `_core.pyi`).
+    #[pyo3(signature = (band=None, *, accuracy=1e-10))]
+    fn band_mass(&self, py: Python<'_>, band: Option<&Bound<'_, PyAny>>, accuracy: f64) -> PyResult<f64> {
+        match band {
+            Some(b) => super::transport::band_mass(py, &self.inner, b, accuracy),
+            None => super::transport::band_mass(py, &self.inner, &0_i64.into_pyobject(py)?.into_any(), accuracy),
+        }
+    }
+    /// Transmission probability between the claddings (see `_core.pyi`).
+    #[pyo3(signature = (energies, *, reflection=false, accuracy=1e-10))]
+    fn transmission<'py>(&self, py: Python<'py>, energies: &Bound<'py, PyAny>, reflection: bool, accuracy: f64) -> PyResult<Py<PyAny>> {
+        super::transport::transmission(py, &self.inner, energies, reflection, accuracy)
+    }
+    /// Tsu-Esaki current density (A/cm²) at one bias (see `_core.pyi`).
+    #[pyo3(signature = (bias, temperature, fermi_level, *, accuracy=1e-8, mesh_accuracy=1e-10))]
+    fn current_density(&self, py: Python<'_>, bias: f64, temperature: f64, fermi_level: f64, accuracy: f64, mesh_accuracy: f64) -> PyResult<f64> {
+        super::transport::current_density(py, &self.inner, bias, temperature, fermi_level, accuracy, mesh_accuracy)
+    }
+    /// Tsu-Esaki current density (A/cm²) at every bias, in parallel (see `_core.pyi`).
+    #[pyo3(signature = (biases, temperature, fermi_level, *, accuracy=1e-8, mesh_accuracy=1e-10))]
+    fn current_voltage<'py>(
+        &self,
+        py: Python<'py>,
+        biases: &Bound<'py, PyAny>,
+        temperature: f64,
+        fermi_level: f64,
+        accuracy: f64,
+        mesh_accuracy: f64,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        super::transport::current_voltage(py, &self.inner, biases, temperature, fermi_level, accuracy, mesh_accuracy)
+    }
     /// Band edges of the left and right claddings (meV), field term included.
     #[getter]
     fn cladding_edges(&self) -> (f64, f64) {

@@ -14,6 +14,7 @@ mod layers;
 mod materials;
 mod propagate;
 mod selfconsistent;
+mod transport;
 
 use pyo3::prelude::*;
 
