@@ -27,16 +27,19 @@ pub fn oscillator_length(py: Python<'_>, mass: f64, frequency_hz: f64, units: &s
 
 /// g of the Gross-Pitaevskii equation (ψ normalised to 1) in `dims` dimensions.
 #[pyfunction]
-#[pyo3(signature = (scattering_length, atom_number, mass, dims=3, confinement_hz=None, units="cold-atom"))]
+#[pyo3(signature = (scattering_length, atom_number, mass, dims=None, confinement_hz=None, units="cold-atom"),
+       text_signature = "(scattering_length, atom_number, mass, dims=3, confinement_hz=None, units=\"cold-atom\")")]
 pub fn coupling_constant(
     py: Python<'_>,
     scattering_length: f64,
     atom_number: f64,
     mass: f64,
-    dims: i64,
+    dims: Option<&Bound<'_, PyAny>>,
     confinement_hz: Option<f64>,
     units: &str,
 ) -> PyResult<f64> {
+    // Any integer is accepted here and checked against {1, 2, 3} below (no overflow error).
+    let dims: i64 = dims.map_or(Ok(3), |d| super::arrays::to_usize(d, "dims", 1, 3)).map(|d| d as i64)?;
     let u = Units::parse(units).py(py)?;
     let omega = || -> PyResult<f64> {
         match confinement_hz {
