@@ -10,9 +10,10 @@ solved on Legendre spectral elements with an element edge on every interface
 (BenDaniel-Duke), self-converged to 1e-10; then the Stark fan of the structure from
 -40 to 40 kV/cm, and an anharmonic trap V = x^4/4 - 2x^2 (natural units) in two bases.
 
-Model limits: single-band effective mass, parabolic bands (no non-parabolicity), no
-many-body effects; the material parameters are illustrative and must be replaced by
-verified ones for real work. The numbers are as good as that model.
+Model limits: single-band effective mass, parabolic bands in this demo (non-parabolicity
+off), no electron-electron interaction in these solves (Schrödinger-Poisson, a mean-field
+option, is not used here); the material parameters are illustrative and must be replaced
+by verified ones for real work. The numbers are as good as that model.
 """
 
 from __future__ import annotations
