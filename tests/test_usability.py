@@ -108,3 +108,21 @@ def test_matrix_elements_of_the_oscillator():
     np.testing.assert_allclose(m, expected, rtol=0, atol=1e-11)
     with pytest.raises(TypeError, match="`g`"):
         s.matrix_elements(3.0)
+
+
+def test_molecular_units_against_scipy_constants_and_a_diatomic():
+    # ħ²/(2u) in cm⁻¹·Å² and ħ in cm⁻¹·fs from scipy.constants (CODATA 2022).
+    import scipy.constants as sc
+    u = sc.physical_constants["atomic mass constant"][0]
+    wavenumber = sc.h * sc.c * 100.0
+    c, hbar = sw.unit_constants("molecular")
+    assert c == pytest.approx(sc.hbar**2 / (2 * u) / wavenumber * 1e20, rel=1e-12)
+    assert hbar == pytest.approx(sc.hbar / wavenumber * 1e15, rel=1e-12)
+    # A harmonic diatomic: V = ½ k (r − r_e)², k in cm⁻¹/Å², μ in u; levels ħω(n + ½) with
+    # ω = sqrt(k/μ) (Griffiths §2.3). With k, μ chosen for ω̃ = 2000 cm⁻¹: E1 − E0 = 2000 cm⁻¹.
+    mu = 6.86  # u, illustrative (a CO-like reduced mass)
+    # ħω = sqrt(ħ²k/μ) = sqrt(2ck/μ) with c = ħ²/(2u) in cm⁻¹·Å².
+    k = 2000.0**2 * mu / (2 * c)
+    basis = sw.HermiteBasis(40, center=1.13, length=(2 * c / mu / k) ** 0.25)
+    e = sw.Hamiltonian(basis, lambda r: 0.5 * k * (r - 1.13) ** 2, mass=mu, units="molecular").solve(3).energies
+    np.testing.assert_allclose(np.diff(e), [2000.0, 2000.0], rtol=1e-10)

@@ -259,9 +259,10 @@ class Hamiltonian:
     mass : float or array_like or callable, optional
         Particle mass in the unit system's mass unit (default 1). On a FourierGrid an array on
         the grid (or a callable) gives the BenDaniel-Duke operator −(ħ²/2) d/dx (1/m) d/dx.
-    units : {"natural", "atomic", "semiconductor", "cold-atom"}
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
         "natural": ħ = 1; "atomic": hartree/bohr/m_e; "semiconductor": nm, meV, m_e, fs;
-        "cold-atom": µm, ħ/ms (so ħ = 1), u, ms.
+        "cold-atom": µm, ħ/ms (so ħ = 1), u, ms; "molecular": Å, cm⁻¹, u (a reduced mass in
+        daltons), fs.
 
     Raises
     ------
@@ -864,7 +865,7 @@ class SplitStep:
         Time step (time units; nonzero; > 0 in imaginary time).
     order : {2, 4}
         2: Strang splitting; 4: Yoshida (1990) composition of three Strang steps.
-    units : {"natural", "atomic", "semiconductor", "cold-atom"}
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
         Unit system ("cold-atom": µm, ms, u, energies in ħ/ms so that ħ = 1).
     drive : callable or array_like, optional
         f(t) of V(x,t) = V0(x) + f(t)·V1(x). A callable is evaluated (vectorised if it can be)
@@ -1071,7 +1072,7 @@ class Run:
     def __len__(self) -> int: ...
 
 def unit_constants(units: str) -> Tuple[float, float]:
-    """(ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time (m₁ the mass unit: m_e, or u for "cold-atom")."""
+    """(ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time (m₁ the mass unit: m_e, or u for "cold-atom" and "molecular")."""
 
 def angular_frequency(frequency_hz: float, units: str = "cold-atom") -> float:
     """ω = 2πf in radians per time unit of ``units`` for a frequency f in Hz (≥ 0; natural units have no time unit)."""

@@ -82,7 +82,7 @@ def plot_levels(spectrum, potential, x: Optional[Sequence[float]] = None, *, sca
 def _unit_labels(units: Optional[str]) -> tuple:
     """(length, energy, time) axis-label units of a unit system name ("" when dimensionless)."""
     return {"semiconductor": ("nm", "meV", "fs"), "atomic": ("bohr", "hartree", "a.u."),
-            "cold-atom": ("µm", "ħ/ms", "ms")}.get(units or "", ("", "", ""))
+            "cold-atom": ("µm", "ħ/ms", "ms"), "molecular": ("Å", "cm⁻¹", "fs")}.get(units or "", ("", "", ""))
 
 
 def _label(name: str, unit: str) -> str:

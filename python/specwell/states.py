@@ -54,7 +54,7 @@ def gaussian_packet(grid, x0, p0=0.0, sigma=1.0, units: str = "natural") -> np.n
         a single number applies to every axis.
     sigma : float or sequence of float
         Position standard deviation σ (> 0, length units); |ψ|² has width σ along each axis.
-    units : {"natural", "atomic", "semiconductor", "cold-atom"}
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
         Unit system (fixes ħ).
 
     Returns

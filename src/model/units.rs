@@ -12,6 +12,7 @@
 //! | `Atomic` | bohr | hartree | m_e | ħ/E_h | 1/2 | 1 |
 //! | `Semiconductor` | nm | meV | m_e | fs | 38.0998… meV nm² | 658.2119… meV fs |
 //! | `ColdAtom` | µm | ħ/ms | u (dalton) | ms | 31.7530… (ħ/ms) µm² | 1 |
+//! | `Molecular` | Å | cm⁻¹ | u (dalton) | fs | 16.8576… cm⁻¹ Å² | 5308.84… cm⁻¹ fs |
 //!
 //! For `ColdAtom` the mass unit is the atomic mass constant u (so the first column is
 //! ħ²/(2u)) and the energy unit is ħ per millisecond (1.054…e-31 J, h × 159.15… Hz), which
@@ -40,6 +41,10 @@ pub mod codata2022 {
     pub const ATOMIC_MASS_CONSTANT: f64 = 1.660_539_068_92e-27;
     /// Atomic unit of time ħ/E_h, s.
     pub const ATOMIC_TIME: f64 = HBAR / HARTREE;
+    /// Speed of light in vacuum c, m/s (exact).
+    pub const SPEED_OF_LIGHT: f64 = 299_792_458.0;
+    /// One wavenumber (cm⁻¹) as an energy, h·c·100 m⁻¹, J.
+    pub const WAVENUMBER_ENERGY: f64 = PLANCK * SPEED_OF_LIGHT * 100.0;
     /// Boltzmann constant k_B, J/K (exact since 2019).
     pub const BOLTZMANN: f64 = 1.380_649e-23;
 }
@@ -57,16 +62,20 @@ pub enum Units {
     /// Cold atoms: lengths in µm, times in ms, masses in u (dalton), energies in ħ/ms
     /// (so ħ = 1); trap frequencies from Hz with [`Units::angular_frequency`].
     ColdAtom,
+    /// Molecular vibrations: lengths in Å, energies in cm⁻¹ (wavenumbers), masses in u
+    /// (dalton; a reduced mass in u as given by mass tables), times in fs.
+    Molecular,
 }
 
 impl Units {
     /// Option strings and their systems, in the order listed in error messages: the one
     /// place the names live (parsing, `name()` and the Python `UNITS` list read it).
-    pub const TABLE: [(&'static str, Units); 4] = [
+    pub const TABLE: [(&'static str, Units); 5] = [
         ("natural", Units::Natural),
         ("atomic", Units::Atomic),
         ("semiconductor", Units::Semiconductor),
         ("cold-atom", Units::ColdAtom),
+        ("molecular", Units::Molecular),
     ];
 
     /// Parse an option string (exact, lower case).
@@ -90,6 +99,8 @@ impl Units {
             }
             // J m² -> (ħ/ms) µm²: divide by ħ/1e-3 s and multiply by 1e12.
             Units::ColdAtom => HBAR * HBAR / (2.0 * ATOMIC_MASS_CONSTANT) / (HBAR / 1e-3) * 1e12,
+            // J m² -> cm⁻¹ Å²
+            Units::Molecular => HBAR * HBAR / (2.0 * ATOMIC_MASS_CONSTANT) / WAVENUMBER_ENERGY * 1e20,
         }
     }
 
@@ -102,6 +113,8 @@ impl Units {
             Units::Semiconductor => HBAR / (ELEMENTARY_CHARGE * 1e-3) * 1e15,
             // the energy unit is ħ/ms
             Units::ColdAtom => 1.0,
+            // J s -> cm⁻¹ fs
+            Units::Molecular => HBAR / WAVENUMBER_ENERGY * 1e15,
         }
     }
 
@@ -112,6 +125,7 @@ impl Units {
             Units::Atomic => Some(codata2022::ATOMIC_TIME),
             Units::Semiconductor => Some(1e-15),
             Units::ColdAtom => Some(1e-3),
+            Units::Molecular => Some(1e-15),
         }
     }
 
@@ -134,6 +148,7 @@ impl Units {
             Units::Atomic => Some(codata2022::HARTREE),
             Units::Semiconductor => Some(codata2022::ELEMENTARY_CHARGE * 1e-3),
             Units::ColdAtom => Some(codata2022::HBAR / 1e-3),
+            Units::Molecular => Some(codata2022::WAVENUMBER_ENERGY),
         }
     }
 
@@ -144,6 +159,7 @@ impl Units {
             Units::Atomic => Some(codata2022::BOHR_RADIUS),
             Units::Semiconductor => Some(1e-9),
             Units::ColdAtom => Some(1e-6),
+            Units::Molecular => Some(1e-10),
         }
     }
 
@@ -154,6 +170,7 @@ impl Units {
             Units::Atomic => ["bohr", "Ha", "m_e", "ħ/Ha"],
             Units::Semiconductor => ["nm", "meV", "m_e", "fs"],
             Units::ColdAtom => ["µm", "ħ/ms", "u", "ms"],
+            Units::Molecular => ["Å", "cm⁻¹", "u", "fs"],
         }
     }
 
@@ -186,6 +203,15 @@ mod tests {
         assert!((w - 0.2 * std::f64::consts::PI).abs() < 1e-15);
         assert!(Units::Natural.angular_frequency(1.0).is_err());
         assert!(Units::ColdAtom.angular_frequency(-1.0).is_err());
+    }
+
+    #[test]
+    fn molecular_constants_match_recalled_values() {
+        // Recalled from memory: the rotational-constant factor B = 16.8576/(μ r²) cm⁻¹ (μ in
+        // u, r in Å) is ħ²/(2u); ħ/(hc) = 1/(2πc) = 5.30884e-12 cm⁻¹ s.
+        assert!((Units::Molecular.hbar2_over_2me() - 16.8576).abs() < 1e-3);
+        assert!((Units::Molecular.hbar() - 5308.84).abs() < 1e-2);
+        assert_eq!(Units::parse("molecular").unwrap(), Units::Molecular);
     }
 
     #[test]
