@@ -58,3 +58,27 @@ pub fn column_major(m: &Mat<f64>) -> Vec<f64> {
 pub fn from_column_major(data: &[f64], nrows: usize, ncols: usize) -> Mat<f64> {
     Mat::from_fn(nrows, ncols, |i, j| data[j * nrows + i])
 }
+
+/// CPU time of the calling thread in seconds (Linux CLOCK_THREAD_CPUTIME_ID), for the
+/// ignored timing tests: serial timings on a shared machine are not inflated by other
+/// processes. `None` where the clock is not available.
+#[cfg(all(test, target_os = "linux"))]
+pub(crate) fn thread_time() -> Option<f64> {
+    #[repr(C)]
+    struct Timespec {
+        sec: i64,
+        nsec: i64,
+    }
+    extern "C" {
+        fn clock_gettime(clk: i32, tp: *mut Timespec) -> i32;
+    }
+    let mut ts = Timespec { sec: 0, nsec: 0 };
+    // SAFETY: plain libc call writing into a properly laid out timespec (64-bit Linux).
+    let rc = unsafe { clock_gettime(3, &mut ts) };
+    (rc == 0 && cfg!(target_pointer_width = "64")).then_some(ts.sec as f64 + ts.nsec as f64 * 1e-9)
+}
+/// See the Linux version.
+#[cfg(all(test, not(target_os = "linux")))]
+pub(crate) fn thread_time() -> Option<f64> {
+    None
+}

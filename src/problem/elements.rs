@@ -631,25 +631,7 @@ mod tests {
     #[test]
     #[ignore]
     fn elements_shift_invert_timing() {
-        #[cfg(target_os = "linux")]
-        fn thread_time() -> Option<f64> {
-            #[repr(C)]
-            struct Timespec {
-                sec: i64,
-                nsec: i64,
-            }
-            extern "C" {
-                fn clock_gettime(clk: i32, tp: *mut Timespec) -> i32;
-            }
-            let mut ts = Timespec { sec: 0, nsec: 0 };
-            // SAFETY: plain libc call writing into a properly laid out timespec (64-bit Linux).
-            let rc = unsafe { clock_gettime(3, &mut ts) };
-            (rc == 0 && cfg!(target_pointer_width = "64")).then_some(ts.sec as f64 + ts.nsec as f64 * 1e-9)
-        }
-        #[cfg(not(target_os = "linux"))]
-        fn thread_time() -> Option<f64> {
-            None
-        }
+        use crate::linalg::thread_time;
         fn best<T>(reps: usize, mut f: impl FnMut() -> T) -> f64 {
             (0..7)
                 .map(|_| {

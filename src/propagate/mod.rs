@@ -1346,27 +1346,7 @@ mod tests {
         assert!(e.to_string().contains("`count`") && e.to_string().contains("nonlinear"), "{e}");
     }
 
-    /// CPU time of the calling thread in seconds (Linux CLOCK_THREAD_CPUTIME_ID), so that
-    /// the timings of serial code are not inflated by other processes on a shared machine.
-    #[cfg(target_os = "linux")]
-    fn thread_time() -> Option<f64> {
-        #[repr(C)]
-        struct Timespec {
-            sec: i64,
-            nsec: i64,
-        }
-        extern "C" {
-            fn clock_gettime(clk: i32, tp: *mut Timespec) -> i32;
-        }
-        let mut ts = Timespec { sec: 0, nsec: 0 };
-        // SAFETY: plain libc call writing into a properly laid out timespec (64-bit Linux).
-        let rc = unsafe { clock_gettime(3, &mut ts) };
-        (rc == 0 && cfg!(target_pointer_width = "64")).then_some(ts.sec as f64 + ts.nsec as f64 * 1e-9)
-    }
-    #[cfg(not(target_os = "linux"))]
-    fn thread_time() -> Option<f64> {
-        None
-    }
+    use crate::linalg::thread_time; // thread CPU time: timings on a shared machine
 
     /// Minimum over 5 blocks of the time per call of `f`: thread CPU time when `cpu`
     /// (serial code), wall time otherwise (parallel code).
