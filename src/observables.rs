@@ -24,7 +24,7 @@ pub fn overlaps(a: &Spectrum, b: &Spectrum) -> Result<Mat<f64>> {
     }
     let n = pa.dim();
     let kb = b.count();
-    let x: Vec<f64> = (0..kb).flat_map(|j| b.vectors.col(j).iter().copied().collect::<Vec<_>>()).collect();
+    let x = crate::linalg::column_major(&b.vectors);
     let mut bx = vec![0.0; n * kb];
     pa.apply_b(&x, &mut bx, kb);
     if pa.structure().generalized || pb.structure().generalized {
@@ -50,8 +50,8 @@ fn quadrature_overlaps(a: &Spectrum, b: &Spectrum) -> Result<Mat<f64>> {
     Ok(Mat::from_fn(a.count(), b.count(), |i, j| (0..xs.len()).map(|k| ws[k] * fa[(k, i)] * fb[(k, j)]).sum()))
 }
 
-/// The x range of a spectrum's basis points.
-fn x_range(s: &Spectrum) -> (f64, f64) {
+/// The x range (min, max) of a spectrum's basis points.
+pub fn x_range(s: &Spectrum) -> (f64, f64) {
     s.basis().as_dyn().points().iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &x| (l.min(x), h.max(x)))
 }
 

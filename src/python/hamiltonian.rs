@@ -383,8 +383,7 @@ impl PySpectrum {
     /// the trapezoid rule on `points` uniform points spanning the basis' own points.
     #[pyo3(signature = (g=None, points=8192))]
     fn expectation<'py>(&self, py: Python<'py>, g: Option<&Bound<'py, PyAny>>, points: usize) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pts = self.inner.basis().as_dyn().points();
-        let (lo, hi) = pts.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        let (lo, hi) = observables::x_range(&self.inner);
         if points < 16 {
             return Err(pyo3::exceptions::PyValueError::new_err(format!("`points` must be an integer >= 16; got {points}")));
         }
