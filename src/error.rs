@@ -22,8 +22,49 @@ pub enum InputError {
 }
 
 impl InputError {
-    pub fn range(argument: &str, expected: impl Into<String>, got: impl fmt::Display) -> Self {
-        InputError::OutOfRange { argument: argument.into(), expected: expected.into(), got: got.to_string() }
+    pub fn range(argument: &str, expected: impl Into<String>, got: impl Shown) -> Self {
+        InputError::OutOfRange { argument: argument.into(), expected: expected.into(), got: got.shown() }
+    }
+}
+
+/// How a rejected value is printed in an error message: numbers compactly (Rust's `{}`
+/// writes 1e308 with 309 digits, so magnitudes outside [1e-4, 1e15) use the exponent
+/// form), everything else as its `Display`.
+pub trait Shown {
+    fn shown(&self) -> String;
+}
+
+impl Shown for f64 {
+    fn shown(&self) -> String {
+        let a = self.abs();
+        if !self.is_finite() || a == 0.0 || (1e-4..1e15).contains(&a) {
+            format!("{self}")
+        } else {
+            format!("{self:e}")
+        }
+    }
+}
+
+impl Shown for f32 {
+    fn shown(&self) -> String {
+        f64::from(*self).shown()
+    }
+}
+
+macro_rules! shown_by_display {
+    ($($t:ty),*) => {$(
+        impl Shown for $t {
+            fn shown(&self) -> String {
+                self.to_string()
+            }
+        }
+    )*};
+}
+shown_by_display!(usize, u64, u32, u8, isize, i64, i32, bool, char, str, String);
+
+impl<T: Shown + ?Sized> Shown for &T {
+    fn shown(&self) -> String {
+        (**self).shown()
     }
 }
 
@@ -193,4 +234,22 @@ pub fn check_memory(argument: &str, needed_bytes: u64, hint: &str) -> std::resul
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rejected_values_print_compactly() {
+        let msg = |v: f64| InputError::range("x", "a finite number > 0", v).to_string();
+        assert_eq!(msg(1e308), "`x` must be a finite number > 0; got 1e308");
+        assert_eq!(msg(-2.5e-300), "`x` must be a finite number > 0; got -2.5e-300");
+        assert_eq!(msg(-3.25), "`x` must be a finite number > 0; got -3.25");
+        assert_eq!(msg(0.0), "`x` must be a finite number > 0; got 0");
+        assert_eq!(msg(f64::NAN), "`x` must be a finite number > 0; got NaN");
+        assert_eq!(msg(f64::NEG_INFINITY), "`x` must be a finite number > 0; got -inf");
+        assert_eq!(InputError::range("n", "an integer >= 1", 0usize).to_string(), "`n` must be an integer >= 1; got 0");
+        assert_eq!(InputError::range("layers", "a list", "an empty list").to_string(), "`layers` must be a list; got an empty list");
+    }
 }

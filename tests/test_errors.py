@@ -368,3 +368,10 @@ def test_cold_atom_helpers_name_arguments():
         sw.oscillator_length(-87.0, 10.0)
     with pytest.raises(ValueError, match=r"`units`.*cold-atom"):
         sw.coupling_constant(0.005, 1e4, 87.0, units="SI")
+
+
+def test_rejected_huge_value_is_printed_compactly():
+    # Rust's default float formatting writes 1e308 with 309 digits; the message must stay readable.
+    with pytest.raises(ValueError) as info:
+        sw.HermiteBasis(16, center=0, length=-1e308)
+    assert str(info.value) == "`length` must be a finite number > 0; got -1e308"
