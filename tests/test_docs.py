@@ -231,6 +231,20 @@ def test_examples_run(name):
     assert runner.failures == 0, "".join(out)
 
 
+@pytest.mark.parametrize("module", ["specwell.states", "specwell.io", "specwell.plotting", "specwell.demo"])
+def test_python_modules_documented(module):
+    if module == "specwell.plotting":
+        pytest.importorskip("matplotlib")
+    mod = __import__(module, fromlist=["_"])
+    names = getattr(mod, "__all__", None) or [n for n in vars(mod) if not n.startswith("_")]
+    problems = []
+    for n in names:
+        obj = getattr(mod, n)
+        if (inspect.isfunction(obj) or inspect.isclass(obj)) and obj.__module__ == module:
+            problems += doc_problems(obj, f"{module}.{n}")
+    assert problems == []
+
+
 def test_examples_exist_for_the_main_entry_points():
     assert {"Hamiltonian", "Hamiltonian.solve", "SplitStep", "Heterostructure"} <= set(_docstrings_with_examples())
 

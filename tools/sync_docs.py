@@ -45,7 +45,8 @@ def doc_lines(doc: str, indent: str) -> list[str]:
     """The ``///`` lines of a docstring; refuses text rustdoc would run as a doctest."""
     lines = inspect.cleandoc(doc).splitlines()
     for i, line in enumerate(lines):
-        if line.startswith("    ") and (i == 0 or not lines[i - 1].strip()):
+        prev = lines[i - 1].strip() if i else ""
+        if line.startswith("    ") and (not prev or set(prev) == {"-"}):
             raise SystemExit(f"an indented line after a blank line is a Rust doctest in rustdoc: {line!r}")
         if "\t" in line:
             raise SystemExit(f"tab in docstring: {line!r}")
