@@ -366,8 +366,9 @@ class Hamiltonian:
         Returns
         -------
         ndarray, shape (N, N), or None
-            B for a Heterostructure and for an ElementBasis (GLL quadrature: diagonal); None
-            for a HermiteBasis or a FourierGrid with a plain potential.
+            B for a Heterostructure (on a FourierGrid or an ElementBasis) and for any
+            ElementBasis problem (diagonal there: GLL quadrature); None for a HermiteBasis or a
+            FourierGrid with a plain potential.
 
         Raises
         ------
@@ -517,7 +518,7 @@ class Spectrum:
         """Residual norms ‖Hψ − Eψ‖ (‖ψ‖ = 1), shape (count,)."""
     @property
     def vectors(self) -> npt.NDArray[np.float64]:
-        """Orthonormal coefficient vectors in the basis, shape (count, N)."""
+        """Orthonormal coefficient vectors in the basis, shape (count, N) (B-orthonormal, cᵀBc = 1, for a generalized problem)."""
     @property
     def x(self) -> npt.NDArray[np.float64]:
         """The basis' own points (grid points or quadrature nodes)."""
@@ -1334,6 +1335,23 @@ class Heterostructure:
             Relative tolerance of the energy integral, in [1e-10, 1e-2].
         mesh_accuracy : float
             Accuracy of T(E) (see ``transmission``), in [1e-13, 1e-3].
+
+        Returns
+        -------
+        float
+            J (A/cm²), with the sign of μ_L − μ_R (positive for bias > 0, electrons flowing
+            from the left lead to the right one).
+
+        Raises
+        ------
+        ValueError
+            Non-finite bias, non-positive temperature, accuracy or mesh_accuracy out of range,
+            non-parabolic layers.
+
+        Notes
+        -----
+        Coherent tunnelling only (no scattering, no charge self-consistency, the bias drops
+        linearly across the stack): a model for trends, not device currents.
         """
     def current_voltage(self, biases: npt.ArrayLike, temperature: float, fermi_level: float, *,
                         accuracy: float = 1e-8, mesh_accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
@@ -1874,6 +1892,17 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid, ElementBasis, None],
     Returns
     -------
     Batch
+        ``energies`` and ``residuals`` of shape (M, count); item i is a Spectrum.
+
+    Raises
+    ------
+    ValueError
+        As for ``Hamiltonian`` and ``Hamiltonian.solve`` (the message names
+        ``potentials[i]``), potentials of the wrong shape, ``mass`` with Heterostructures.
+    TypeError
+        Heterostructures with a basis, or other items without one.
+    ConvergenceError
+        An iterative item missed ``tol``.
     """
 
 def _layer_from_parts(thickness: float, band_edge: float, mass: float, doping: float,

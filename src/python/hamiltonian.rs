@@ -163,8 +163,9 @@ impl PyHamiltonian {
     /// Returns
     /// -------
     /// ndarray, shape (N, N), or None
-    ///     B for a Heterostructure and for an ElementBasis (GLL quadrature: diagonal); None
-    ///     for a HermiteBasis or a FourierGrid with a plain potential.
+    ///     B for a Heterostructure (on a FourierGrid or an ElementBasis) and for any
+    ///     ElementBasis problem (diagonal there: GLL quadrature); None for a HermiteBasis or a
+    ///     FourierGrid with a plain potential.
     ///
     /// Raises
     /// ------
@@ -492,7 +493,7 @@ impl PySpectrum {
     fn residuals<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.residuals)
     }
-    /// Orthonormal coefficient vectors in the basis, shape (count, N).
+    /// Orthonormal coefficient vectors in the basis, shape (count, N) (B-orthonormal, cᵀBc = 1, for a generalized problem).
     #[getter]
     fn vectors<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
         mat_t_to_py(py, self.inner.vectors.as_ref())
@@ -977,6 +978,17 @@ pub fn _batch_from_spectra(spectra: Vec<PyRef<'_, PySpectrum>>) -> PyBatch {
 /// Returns
 /// -------
 /// Batch
+///     ``energies`` and ``residuals`` of shape (M, count); item i is a Spectrum.
+///
+/// Raises
+/// ------
+/// ValueError
+///     As for ``Hamiltonian`` and ``Hamiltonian.solve`` (the message names
+///     ``potentials[i]``), potentials of the wrong shape, ``mass`` with Heterostructures.
+/// TypeError
+///     Heterostructures with a basis, or other items without one.
+/// ConvergenceError
+///     An iterative item missed ``tol``.
 #[pyfunction]
 #[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10, accuracy=1e-10))]
 pub fn solve_batch(

@@ -564,6 +564,23 @@ impl PyHeterostructure {
     ///     Relative tolerance of the energy integral, in [1e-10, 1e-2].
     /// mesh_accuracy : float
     ///     Accuracy of T(E) (see ``transmission``), in [1e-13, 1e-3].
+    ///
+    /// Returns
+    /// -------
+    /// float
+    ///     J (A/cm²), with the sign of μ_L − μ_R (positive for bias > 0, electrons flowing
+    ///     from the left lead to the right one).
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     Non-finite bias, non-positive temperature, accuracy or mesh_accuracy out of range,
+    ///     non-parabolic layers.
+    ///
+    /// Notes
+    /// -----
+    /// Coherent tunnelling only (no scattering, no charge self-consistency, the bias drops
+    /// linearly across the stack): a model for trends, not device currents.
     #[pyo3(signature = (bias, temperature, fermi_level, *, accuracy=1e-8, mesh_accuracy=1e-10))]
     fn current_density(&self, py: Python<'_>, bias: f64, temperature: f64, fermi_level: f64, accuracy: f64, mesh_accuracy: f64) -> PyResult<f64> {
         super::transport::current_density(py, &self.inner, bias, temperature, fermi_level, accuracy, mesh_accuracy)
