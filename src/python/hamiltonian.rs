@@ -264,9 +264,10 @@ impl PyHamiltonian {
     ///
     /// Notes
     /// -----
-    /// The residual r = ‖Hψ − Eψ‖ bounds the eigenvalue error of the discretised problem
-    /// (|E − E_exact,discrete| ≤ r for symmetric H); it says nothing about the discretisation
-    /// error of the basis. Check that by solving again with a larger basis.
+    /// The residual r = ‖Hψ − Eψ‖ (‖ψ‖ = 1) bounds the eigenvalue error of the discretised
+    /// problem (some exact discrete eigenvalue lies within r of E, for a standard symmetric
+    /// problem); it says nothing about the discretisation error of the basis. Check that by
+    /// solving again with a larger basis.
     ///
     /// Examples
     /// --------
