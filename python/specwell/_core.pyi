@@ -57,18 +57,26 @@ class HermiteBasis:
     ----------
     size : int
         Number of functions, 1 ≤ size ≤ 20000.
-    center : float
-        Centre of the basis (length units).
-    length : float
-        Oscillator length (> 0, length units).
+    center : float, default 0.0
+        Centre of the basis (length units, finite).
+    length : float, default 1.0
+        Oscillator length (> 0, length units). Best near √(ħ/(mω)) of the potential's
+        harmonic part: the functions then resemble the states.
     quadrature : int, optional
-        Number of quadrature nodes, size < quadrature ≤ 80000; default 2·size. Matrix elements
-        of polynomial potentials of degree ≤ 2(quadrature − size) + 1 are exact.
+        Number of quadrature nodes, size < quadrature ≤ 80000; default None means 2·size.
+        Matrix elements of polynomial potentials of degree ≤ 2(quadrature − size) + 1 are exact.
 
     Raises
     ------
     ValueError
         If an argument is outside its range (the message names it).
+    TypeError
+        ``size`` or ``quadrature`` not an integer.
+
+    Notes
+    -----
+    The basis reaches |x − center| ≲ length·sqrt(2·size): states that extend further, or
+    potentials with steps, converge slowly; use a FourierGrid or an ElementBasis there.
     """
 
     def __new__(cls, size: int, center: float = 0.0, length: float = 1.0, quadrature: Optional[int] = None) -> HermiteBasis: ...
@@ -111,10 +119,33 @@ class ElementBasis:
     ----------
     breakpoints : array_like
         Strictly increasing, finite, at least two (length units).
-    order : int
-        Polynomial order p of every element, 2 ≤ p ≤ 64 (default 16).
+    order : int, default 16
+        Polynomial order p of every element, 2 ≤ p ≤ 64.
     max_element_length : float, optional
-        Split intervals longer than this into equal elements.
+        Split intervals longer than this (> 0, length units) into equal elements; default None:
+        one element per interval.
+
+    Raises
+    ------
+    ValueError
+        Breakpoints not strictly increasing, fewer than two or not finite; order or
+        max_element_length out of range.
+    TypeError
+        ``order`` not an integer.
+
+    Notes
+    -----
+    The Dirichlet ends are hard walls: put them where the wanted states have decayed.
+
+    Examples
+    --------
+    Infinite square well of width 1 (E_n = n²π²/2 in natural units):
+
+    >>> import numpy as np
+    >>> import specwell as sw
+    >>> st = sw.Hamiltonian(sw.ElementBasis([0.0, 0.5, 1.0]), lambda x: 0.0 * x).solve(2)
+    >>> np.allclose(st.energies, np.array([1, 4]) * np.pi**2 / 2, rtol=1e-10)
+    True
     """
 
     def __new__(cls, breakpoints: npt.ArrayLike, order: int = 16, max_element_length: Optional[float] = None) -> ElementBasis: ...
@@ -149,10 +180,25 @@ class FourierGrid:
     points : int
         Number of grid points, 2 ≤ points ≤ 2**28.
 
+    Raises
+    ------
+    ValueError
+        Non-finite bounds, stop ≤ start, points out of range.
+    TypeError
+        ``points`` not an integer.
+
     Notes
     -----
     x_j = start + j·dx, dx = (stop − start)/points; k = 2π·fftfreq(points, dx). State
-    coefficients in this basis are ψ(x_j)·sqrt(dx).
+    coefficients in this basis are ψ(x_j)·sqrt(dx). The box is periodic: a state that does
+    not vanish at the edges meets its own image; make the box wider than the states.
+
+    Examples
+    --------
+    >>> import specwell as sw
+    >>> g = sw.FourierGrid(-5.0, 5.0, 100)
+    >>> g.dx, float(g.x[0]), len(g)
+    (0.1, -5.0, 100)
     """
 
     def __new__(cls, start: float, stop: float, points: int) -> FourierGrid: ...
@@ -240,44 +286,102 @@ class ProductGrid:
     def k_squared(self) -> npt.NDArray[np.float64]:
         """|k|² = Σ k_a² on ``shape`` (FFT layout: numpy fftfreq order on every axis)."""
     def mesh(self, sparse: bool = False) -> Tuple[npt.NDArray[np.float64], ...]:
-        """Coordinate arrays ``numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)``."""
+        """Coordinate arrays of the grid points, ``numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)``.
+
+        Parameters
+        ----------
+        sparse : bool, default False
+            Broadcastable arrays of shapes (nx, 1[, 1]), (1, ny[, 1]) … instead of full ones.
+
+        Returns
+        -------
+        tuple of ndarray
+            (X, Y) or (X, Y, Z).
+        """
     def __len__(self) -> int: ...
 
 @final
 class Hamiltonian:
-    """H = T + V on a basis.
+    """H = T + V of one particle on a basis: the single-band effective-mass Schrödinger operator.
+
+    T = −(ħ²/2m) d²/dx² for a constant mass, −(ħ²/2) d/dx (1/m(x)) d/dx (BenDaniel-Duke) for a
+    mass profile, with ħ and the mass unit of ``units``. The matrix is built once; ``solve``,
+    ``apply`` and ``matrix`` reuse it.
 
     Parameters
     ----------
-    basis : HermiteBasis or FourierGrid
-        The basis.
+    basis : HermiteBasis, FourierGrid or ElementBasis
+        The basis. A FourierGrid is periodic (states wrap around the box); an ElementBasis
+        has ψ = 0 at both ends; a HermiteBasis decays like the oscillator functions.
     potential : callable or array_like or Heterostructure
-        Vectorised V(x) called with ``basis.x``, or samples on ``basis.x`` (energy units).
-        A Heterostructure on a FourierGrid (``units="semiconductor"``, no ``mass``) gives the
-        BenDaniel-Duke Hamiltonian with exact layer integrals in the mass coordinate: the grid
-        sets the box and the number of modes; the problem is generalized (A c = E B c).
+        Vectorised V(x) called once with ``basis.x`` (returning a number means a constant), or
+        samples on ``basis.x`` (energy units; finite, |V| ≤ 1e100). A Heterostructure (with
+        ``units="semiconductor"`` and no ``mass``) gives the BenDaniel-Duke Hamiltonian of the
+        layers: on an ElementBasis the element problem, on a FourierGrid the exact layer
+        integrals in the mass coordinate (the grid sets the box and the number of modes); both
+        are generalized problems A c = E B c (see ``overlap_matrix``).
     mass : float or array_like or callable, optional
-        Particle mass in the unit system's mass unit (default 1). On a FourierGrid an array on
-        the grid (or a callable) gives the BenDaniel-Duke operator −(ħ²/2) d/dx (1/m) d/dx.
-    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
-        "natural": ħ = 1; "atomic": hartree/bohr/m_e; "semiconductor": nm, meV, m_e, fs;
-        "cold-atom": µm, ħ/ms (so ħ = 1), u, ms; "molecular": Å, cm⁻¹, u (a reduced mass in
-        daltons), fs.
+        Particle mass (> 0) in the mass unit of ``units``; default None means 1. On a
+        FourierGrid or an ElementBasis an array on ``basis.x`` (on elements also one value per
+        element) or a callable gives a position-dependent mass; a HermiteBasis takes a number only.
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}, default "natural"
+        "natural": ħ = 1, mass 1; "atomic": hartree, bohr, m_e; "semiconductor": nm, meV, m_e,
+        fs; "cold-atom": µm, ħ/ms (so ħ = 1), u, ms; "molecular": Å, cm⁻¹, u (a reduced mass
+        in daltons), fs.
 
     Raises
     ------
     ValueError
-        NaN/inf or wrong-length potential or mass, non-positive mass, unknown units.
+        NaN/inf or wrong-length potential or mass, non-positive mass, unknown units, ``mass``
+        given with a Heterostructure.
     TypeError
-        Wrong basis type, complex or non-numeric potential.
+        Wrong basis type (a Heterostructure needs a FourierGrid or an ElementBasis), complex or
+        non-numeric potential, a Heterostructure where a callable or array is expected.
+
+    Notes
+    -----
+    Model limits: one particle, one band, parabolic dispersion (a constant mass per point);
+    no spin, strain, many-body or non-parabolic effects (``Heterostructure.solve`` treats
+    non-parabolicity). A smooth potential sampled on a grid converges spectrally; a step in V
+    or m sampled on a FourierGrid converges only like O(1/N): put steps on element
+    breakpoints (ElementBasis) or pass a Heterostructure.
+
+    Examples
+    --------
+    Harmonic oscillator in natural units (levels n + 1/2):
+
+    >>> import numpy as np
+    >>> import specwell as sw
+    >>> H = sw.Hamiltonian(sw.FourierGrid(-10.0, 10.0, 128), lambda x: 0.5 * x**2)
+    >>> np.round(H.solve(3).energies, 8)
+    array([0.5, 1.5, 2.5])
     """
 
-    def __new__(cls, basis: Union[HermiteBasis, FourierGrid], potential: _PotentialLike,
+    def __new__(cls, basis: Union[HermiteBasis, FourierGrid, ElementBasis],
+                 potential: Union[_PotentialLike, Heterostructure],
                  mass: Union[float, _PotentialLike, None] = None, units: str = "natural") -> Hamiltonian: ...
     def overlap_matrix(self) -> Optional[npt.NDArray[np.float64]]:
-        """The overlap matrix B of a heterostructure's generalized problem A c = E B c (None otherwise)."""
+        """The overlap matrix B of a generalized problem A c = E B c (None where B = I).
+
+        Returns
+        -------
+        ndarray, shape (N, N), or None
+            B for a Heterostructure (on a FourierGrid or an ElementBasis) and for any
+            ElementBasis problem (diagonal there: GLL quadrature); None for a HermiteBasis or a
+            FourierGrid with a plain potential.
+
+        Raises
+        ------
+        MemoryError
+            If the matrix would not fit in available memory.
+        """
     def matrix(self) -> npt.NDArray[np.float64]:
-        """The dense N×N matrix (real symmetric); for a heterostructure, the matrix A of A c = E B c.
+        """The dense N×N matrix (real symmetric); for a generalized problem, A of A c = E B c.
+
+        Returns
+        -------
+        ndarray, shape (N, N)
+            Energy units; in the basis' coefficients (on a FourierGrid, ψ(x_j)·sqrt(dx)).
 
         Raises
         ------
@@ -285,42 +389,93 @@ class Hamiltonian:
             If the matrix would not fit in available memory.
         """
     def apply(self, psi: npt.ArrayLike) -> npt.NDArray[np.generic]:
-        """H·psi, matrix-free, for a real or complex vector of basis coefficients (length N).
+        """H·psi, matrix-free, for a real or complex vector of basis coefficients.
 
-        On a FourierGrid the coefficients may equally be grid samples ψ(x_j) (the map is linear).
+        Parameters
+        ----------
+        psi : array_like, shape (N,)
+            Real or complex coefficients. On a FourierGrid they may equally be grid samples
+            ψ(x_j) (the map is linear).
+
+        Returns
+        -------
+        ndarray, shape (N,)
+            float64 for real ``psi``, complex128 for complex ``psi``; for a generalized problem
+            the product with A (not B⁻¹A).
+
+        Raises
+        ------
+        ValueError
+            ``psi`` of the wrong length or not finite.
         """
     def solve(self, count: int, method: str = "auto", tol: float = 1e-10, max_iter: Optional[int] = None,
               initial: Union[Spectrum, npt.ArrayLike, None] = None, seed: Optional[int] = None) -> Spectrum:
-        """Lowest ``count`` eigenpairs.
+        """Lowest ``count`` eigenpairs (energies ascending) with their residuals.
 
         Parameters
         ----------
         count : int
-            Number of states, 1 ≤ count ≤ N.
-        method : {"auto", "dense", "iterative"}
-            "dense": full symmetric eigensolver; "iterative": matrix-free block solver for the
-            lowest states; "auto": chooses by size.
-        tol : float
+            Number of states, 1 ≤ count ≤ N (N = ``size``).
+        method : {"auto", "dense", "iterative"}, default "auto"
+            "dense": direct eigensolver on the assembled matrix (banded on an ElementBasis,
+            parity blocks on a symmetric HermiteBasis problem); "iterative": matrix-free block
+            solver (LOBPCG) for the lowest states; "auto": iterative when the
+            problem has an FFT product (FourierGrid, or a Heterostructure on one), N > 512 and
+            count ≤ N/4, dense otherwise. If an automatic iterative solve stalls and the dense
+            matrices fit in memory it is finished densely (``Spectrum.note`` says so).
+        tol : float, default 1e-10
             Residual tolerance of the iterative path, ‖Hψ − Eψ‖ ≤ tol·max(1, |E|), in (0, 1).
+            Not used by the dense path.
         max_iter : int, optional
-            Iteration limit of the iterative path.
+            Iteration limit of the iterative path, ≥ 1; default None means 1000.
         initial : Spectrum or array_like (k, N), optional
             Warm start for the iterative path. Without it, a large grid starts from the
             same problem solved on a coarser grid of the same box (then interpolated).
         seed : int, optional
             Seed of the iterative path's random vectors (the start block when there is neither
-            ``initial`` nor a coarser grid to start from, and any columns ``initial`` lacks), in [0, 2**63).
+            ``initial`` nor a coarser grid to start from, and any columns ``initial`` lacks), in
+            [0, 2**63); default None means a fixed seed, so results are reproducible.
 
         Returns
         -------
         Spectrum
+            ``energies``, ``vectors``, ``residuals`` and the method actually used.
 
         Raises
         ------
         ValueError
-            count outside [1, N], tol outside (0, 1), unknown method.
+            count outside [1, N], tol outside (0, 1), unknown method, ``initial`` of the wrong
+            shape or not finite.
+        MemoryError
+            The dense path's matrices (about three N×N float64 arrays, five for a
+            generalized problem) would not fit in available memory.
         ConvergenceError
-            The iterative path missed ``tol`` within ``max_iter``.
+            The iterative path missed ``tol`` within ``max_iter`` (and could not be finished
+            densely).
+
+        Warns
+        -----
+        AccuracyWarning
+            Round-off allows some level less than 1e-8 relative accuracy
+            (``Spectrum.attainable_accuracy``).
+
+        Notes
+        -----
+        The residual r = ‖Hψ − Eψ‖ (‖ψ‖ = 1) bounds the eigenvalue error of the discretised
+        problem (some exact discrete eigenvalue lies within r of E, for a standard symmetric
+        problem); it says nothing about the discretisation error of the basis. Check that by
+        solving again with a larger basis.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> import specwell as sw
+        >>> H = sw.Hamiltonian(sw.HermiteBasis(40), lambda x: 0.5 * x**2)
+        >>> st = H.solve(4)
+        >>> np.round(st.energies, 10)
+        array([0.5, 1.5, 2.5, 3.5])
+        >>> bool(st.residuals.max() < 1e-10)
+        True
         """
     @property
     def basis(self) -> Union[HermiteBasis, FourierGrid]:
@@ -343,7 +498,18 @@ class Hamiltonian:
 
 @final
 class Spectrum:
-    """Lowest eigenpairs of a Hamiltonian (returned by ``Hamiltonian.solve``)."""
+    """Lowest eigenpairs of a Hamiltonian (returned by ``Hamiltonian.solve``).
+
+    Not constructed directly. ``len(spectrum)`` is the number of states; results pickle and
+    save (``save``) exactly.
+
+    Notes
+    -----
+    Wavefunctions are normalised, ∫|ψ|² dx = 1 (for a generalized problem cᵀBc = 1). Signs are
+    deterministic: each state is positive in the leftmost region where |ψ| exceeds 1 % of its
+    maximum. ``residuals`` measure how well the discrete eigenproblem is solved, not the
+    error of the basis (``errors``, set by ``Heterostructure.solve``, estimates that).
+    """
 
     @property
     def energies(self) -> npt.NDArray[np.float64]:
@@ -353,7 +519,7 @@ class Spectrum:
         """Residual norms ‖Hψ − Eψ‖ (‖ψ‖ = 1), shape (count,)."""
     @property
     def vectors(self) -> npt.NDArray[np.float64]:
-        """Orthonormal coefficient vectors in the basis, shape (count, N)."""
+        """Orthonormal coefficient vectors in the basis, shape (count, N) (B-orthonormal, cᵀBc = 1, for a generalized problem)."""
     @property
     def x(self) -> npt.NDArray[np.float64]:
         """The basis' own points (grid points or quadrature nodes)."""
@@ -402,15 +568,32 @@ class Spectrum:
         """For a layered structure: True where the level lies below both cladding band edges
         (in a field, below the lower of the two), False for continuum (box) states; else None."""
     def wavefunctions(self, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
-        """ψ_n(x) for every state, shape (count, len(x)), normalised ∫|ψ|² dx = 1.
+        """ψ_n(x) for every state, normalised ∫|ψ|² dx = 1.
 
         Parameters
         ----------
         x : array_like, optional
-            Points (length units); default: the basis' own points.
+            Points (length units, finite); default None: the basis' own points ``x``. Evaluated
+            with the basis functions themselves: the trigonometric series on a FourierGrid
+            (points must lie in [start, stop]), Hermite functions anywhere, element
+            polynomials on an ElementBasis (0 outside the elements).
+
+        Returns
+        -------
+        ndarray, shape (count, len(x))
+            Real values (1/sqrt(length) units).
+
+        Raises
+        ------
+        ValueError
+            ``x`` not finite, or outside the box of a FourierGrid.
         """
     def dipole_matrix(self) -> npt.NDArray[np.float64]:
-        """Position matrix ⟨i|x|j⟩, shape (count, count), length units."""
+        """Position matrix ⟨i|x|j⟩, shape (count, count), length units.
+
+        On a FourierGrid x is the grid coordinate (not periodic): meaningful for states that
+        vanish at the box edges.
+        """
     def oscillator_strengths(self) -> npt.NDArray[np.float64]:
         """f_ij = (2m_i/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
 
@@ -428,10 +611,24 @@ class Spectrum:
         range both bases cover: round-off accurate for smooth states, about 1e-7 where a
         state has a kink (layer interfaces) inside a quadrature panel.
 
+        Parameters
+        ----------
+        other : Spectrum
+            The second set of states (same length unit; any basis).
+
+        Returns
+        -------
+        ndarray, shape (len(self), len(other))
+
         Raises
         ------
         ValueError
             The two bases share no x range.
+
+        Notes
+        -----
+        On different bases only the common x range is integrated: weight of either state
+        outside it is missing from the overlap.
         """
     def matrix_elements(self, g: Callable[[npt.NDArray[np.float64]], npt.ArrayLike]) -> npt.NDArray[np.float64]:
         """Matrix elements ⟨ψ_i|g(x)|ψ_j⟩, shape (count, count).
@@ -457,36 +654,96 @@ class Spectrum:
         Parameters
         ----------
         energies : array_like
-            Photon energies (energy units).
+            Photon energies (energy units, finite).
         broadening : float
             Line width (> 0): half width at half maximum (Lorentzian) or standard deviation (Gaussian).
-        shape : {"lorentzian", "gaussian"}
+        shape : {"lorentzian", "gaussian"}, default "lorentzian"
             Unit-area line shape.
-        initial : int
-            Initial state index.
+        initial : int, default 0
+            Initial state index, in [0, count − 1].
 
         Returns
         -------
-        ndarray
+        ndarray, shape (len(energies),)
             Oscillator strength per unit energy; multiply by the material prefactor for an
             absorption coefficient.
+
+        Raises
+        ------
+        ValueError
+            Non-positive broadening, non-finite energies, unknown shape, ``initial`` out of range.
+
+        Notes
+        -----
+        Only transitions between the ``count`` computed states enter: solve for enough states
+        to cover the photon energies.
         """
     def expectation(self, g: Optional[Callable[[npt.NDArray[np.float64]], npt.ArrayLike]] = None,
                     points: int = 8192) -> npt.NDArray[np.float64]:
-        """⟨n|g(x)|n⟩ for every state (g=None: ⟨x⟩), trapezoid rule on ``points`` uniform points."""
+        """⟨n|g(x)|n⟩ for every state (g=None: ⟨x⟩).
+
+        Parameters
+        ----------
+        g : callable, optional
+            Vectorised g(x) returning finite values, called once with the ``points`` sample
+            points; default None means g(x) = x.
+        points : int, default 8192
+            Number of uniform points (≥ 16) spanning the basis' own points ``x`` (from the
+            smallest to the largest); the trapezoid rule on them.
+
+        Returns
+        -------
+        ndarray, shape (count,)
+
+        Raises
+        ------
+        ValueError
+            ``points`` < 16, ``g`` returns the wrong number of values or non-finite ones.
+
+        Notes
+        -----
+        The range is that of ``x``: a state with weight outside it (a HermiteBasis state beyond
+        the outermost nodes) is integrated only over the part inside. Second order in the
+        spacing; ``matrix_elements`` is more accurate for smooth g.
+        """
     def save(self, path: str) -> None:
-        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
+        """Save to a ``.npz`` file readable with numpy alone (see :func:`specwell.save`).
+
+        Parameters
+        ----------
+        path : str or path-like
+            Destination; numpy appends ``.npz`` if missing.
+        """
     def __len__(self) -> int: ...
 
 def eigh(a: npt.ArrayLike) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]:
     """All eigenpairs of a real symmetric matrix (lower triangle read) with the core's dense solver.
+
+    Parameters
+    ----------
+    a : array_like, shape (n, n)
+        Real square matrix, finite, |a_ij| ≤ 1e100; only the lower triangle is read (the
+        upper one is assumed to mirror it).
 
     Returns
     -------
     values : ndarray, shape (n,)
         Eigenvalues, ascending.
     vectors : ndarray, shape (n, n)
-        Eigenvectors as columns.
+        Orthonormal eigenvectors as columns.
+
+    Raises
+    ------
+    ValueError
+        ``a`` not square, empty, not finite or with entries beyond 1e100.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> import specwell as sw
+    >>> w, v = sw.eigh(np.array([[2.0, 1.0], [1.0, 2.0]]))
+    >>> np.round(w, 12)
+    array([1., 3.])
     """
 
 @final
@@ -495,14 +752,31 @@ class Layer:
 
     Parameters
     ----------
-    thickness, band_edge, mass : float
-        nm, meV, m_e.
-    doping : float, keyword-only
-        Net ionized dopant density (cm⁻³; donors > 0, acceptors < 0), for Schrödinger-Poisson.
-    permittivity : float or None, keyword-only
-        Static relative permittivity ε_r (needed where there is charge).
-    nonparabolicity : float, keyword-only
-        α (1/eV) of the energy-dependent mass m(E) = m (1 + α (E − E_c)) (two-band Kane form).
+    thickness : float
+        Thickness (nm, finite, > 0).
+    band_edge : float
+        Conduction-band edge (meV, finite).
+    mass : float
+        Effective mass (m_e, finite, > 0).
+    doping : float, keyword-only, default 0.0
+        Net ionized dopant density (cm⁻³; donors > 0, acceptors < 0; |doping| ≤ 1e23), for
+        Schrödinger-Poisson.
+    permittivity : float or None, keyword-only, default None
+        Static relative permittivity ε_r (> 0; needed where there is charge).
+    nonparabolicity : float, keyword-only, default 0.0
+        α (1/eV, in [0, 100]) of the energy-dependent mass m(E) = m (1 + α (E − E_c))
+        (two-band Kane form); 0 for a parabolic band.
+
+    Raises
+    ------
+    TypeError
+        A non-numeric argument.
+
+    Notes
+    -----
+    The values are checked when a ``Heterostructure`` is built from the layer (ValueError
+    naming ``layers[i].thickness`` etc.), not here. Material parameters are the user's
+    responsibility (see ``specwell.material`` for a table recalled from the literature).
     """
 
     def __new__(cls, thickness: float, band_edge: float, mass: float, *, doping: float = 0.0,
@@ -510,10 +784,32 @@ class Layer:
     @classmethod
     def from_material(cls, material: Material, thickness: float, *, reference: Optional[Material] = None,
                       nonparabolicity: Optional[str] = "three_band", doping: float = 0.0) -> Layer:
-        """A layer of ``material``: band edge = its Γ conduction-band edge minus that of
-        ``reference`` (on the compilation's absolute scale without one), its mass and
-        permittivity, and the non-parabolicity α of the Kane model ``nonparabolicity``
-        ("three_band", "two_band"; None for a parabolic band).
+        """A layer of ``material`` with the table's band edge, mass, permittivity and non-parabolicity.
+
+        Parameters
+        ----------
+        material : Material
+            From ``specwell.material``.
+        thickness : float
+            Thickness (nm, > 0).
+        reference : Material, optional
+            Band edge = the Γ conduction-band edge of ``material`` minus that of ``reference``
+            (meV); default None: on the compilation's absolute scale (InSb valence band = 0).
+        nonparabolicity : {"three_band", "two_band"} or None, default "three_band"
+            Kane model of α (see ``Material.nonparabolicity``); None for a parabolic band.
+        doping : float, default 0.0
+            Net ionized dopant density (cm⁻³).
+
+        Returns
+        -------
+        Layer
+
+        Raises
+        ------
+        TypeError
+            ``material`` or ``reference`` not a Material.
+        ValueError
+            Unknown ``nonparabolicity`` model.
         """
     @property
     def doping(self) -> float:
@@ -557,17 +853,64 @@ class SelfConsistent:
     def note(self) -> Optional[str]:
         """Why the solution is special (the flat band of an undoped structure), else None."""
     def potential(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
-        """Total band edge E_c + field + electrostatic energy (meV) at z (nm); V_xc excluded."""
+        """Total band edge E_c + field + electrostatic energy (meV) at z (nm); V_xc excluded.
+
+        Parameters
+        ----------
+        z : array_like
+            Positions (nm, finite).
+
+        Returns
+        -------
+        ndarray, shape (len(z),)
+        """
     def density(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
-        """Electron density n(z) = Σ_i N_i |ψ_i(z)|² (cm⁻³) at z (nm)."""
+        """Electron density n(z) = Σ_i N_i |ψ_i(z)|² (cm⁻³) at z (nm).
+
+        Parameters
+        ----------
+        z : array_like
+            Positions (nm, finite).
+
+        Returns
+        -------
+        ndarray, shape (len(z),)
+        """
 
 def self_consistent_batch(stacks: Sequence[Heterostructure], temperature: float, *,
                           fermi_level: Optional[float] = None, surface_barrier: Optional[float] = None,
                           tol: float = 1e-6, max_iter: int = 100, exchange_correlation: bool = False,
                           accuracy: float = 1e-10, mixing: float = 0.3) -> list[SelfConsistent]:
-    """``Heterostructure.self_consistent`` for many structures (a doping or gate sweep), in
-    parallel (rayon, GIL released): one contiguous chunk per thread, each item started from
-    the previous item's electrostatic potential."""
+    """``Heterostructure.self_consistent`` for many structures (a doping or gate sweep), in parallel.
+
+    Rayon threads with the GIL released: one contiguous chunk of the sequence per thread, each
+    item started from the previous item's electrostatic potential (so neighbouring items
+    should be similar structures).
+
+    Parameters
+    ----------
+    stacks : sequence of Heterostructure
+        The structures, each with a permittivity on every layer.
+    temperature : float
+        K, > 0.
+    fermi_level, surface_barrier, tol, max_iter, exchange_correlation, accuracy, mixing
+        Keyword-only; as for ``Heterostructure.self_consistent`` (same defaults), applied to
+        every structure.
+
+    Returns
+    -------
+    list of SelfConsistent
+        One per structure, in order.
+
+    Raises
+    ------
+    TypeError
+        An item is not a Heterostructure.
+    ValueError
+        As for ``Heterostructure.self_consistent``.
+    ConvergenceError
+        Some item did not converge within ``max_iter``.
+    """
 
 @final
 class Material:
@@ -581,7 +924,8 @@ class Material:
     """
 
     @property
-    def name(self) -> str: ...
+    def name(self) -> str:
+        """Material name as given to ``specwell.material`` (one of ``specwell.MATERIALS``)."""
     @property
     def x(self) -> Optional[float]:
         """Composition of a ternary (AlGaAs: Al fraction; InGaAs, InAlAs: In fraction; GaAsSb, InAsSb, AlAsSb: Sb fraction)."""
@@ -616,11 +960,45 @@ class Material:
     def source(self) -> str:
         """Where the row's numbers come from."""
     def nonparabolicity(self, model: str = "three_band") -> float:
-        """Non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)): Kane "three_band" (with Δ_so) or "two_band" (≈ 1/E_g)."""
+        """Conduction-band non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)).
+
+        Parameters
+        ----------
+        model : {"three_band", "two_band"}, default "three_band"
+            Kane model: "three_band" includes the spin-orbit splitting Δ_so; "two_band" gives
+            α ≈ 1/E_g.
+
+        Returns
+        -------
+        float
+
+        Raises
+        ------
+        ValueError
+            Unknown model.
+        """
 
 def material(name: str, x: Optional[float] = None, temperature: float = 300.0) -> Material:
-    """Parameters of material ``name`` (one of ``specwell.MATERIALS``) at composition ``x``
-    (ternaries only, 0 ≤ x ≤ 1) and ``temperature`` (K, 0–800).
+    """Parameters of a III-V material at a composition and temperature.
+
+    Parameters
+    ----------
+    name : str
+        One of ``specwell.MATERIALS`` (e.g. "GaAs", "AlGaAs").
+    x : float, optional
+        Composition of a ternary, 0 ≤ x ≤ 1 (see ``Material.x`` for which element); None
+        for a binary (required for a ternary).
+    temperature : float, default 300.0
+        K, in [0, 800]; the band gap follows the Varshni form.
+
+    Returns
+    -------
+    Material
+
+    Notes
+    -----
+    The table's values were recalled from memory of the published compilation (see
+    ``Material.source``): verify the parameters you rely on before using them for real work.
 
     Raises
     ------
@@ -638,9 +1016,35 @@ class Heterostructure:
     layers : sequence of Layer
         From left to right; the outer layers continue beyond the stack as flat semi-infinite
         claddings.
-    field_kv_cm : float
-        Field (kV/cm) applied across the stack only: V(z) = band edge + 0.1·F·(clamp(z, 0, L) − L/2) meV,
-        constant in the claddings.
+    field_kv_cm : float, default 0.0
+        Field (kV/cm, finite) applied across the stack only: V(z) = band edge +
+        0.1·F·(clamp(z, 0, L) − L/2) meV, constant in the claddings.
+
+    Raises
+    ------
+    TypeError
+        ``layers`` not a sequence of Layer.
+    ValueError
+        No layers, or a layer value out of range (the message names ``layers[i].<field>``),
+        non-finite field.
+
+    Notes
+    -----
+    Semiconductor units throughout (nm, meV, m_e). Model: single conduction band in the
+    envelope-function (BenDaniel-Duke) approximation with abrupt interfaces; no strain,
+    valence-band mixing or interface roughness. The results are only as good as the layer
+    parameters.
+
+    Examples
+    --------
+    A 10 nm GaAs-like well between 250 meV barriers:
+
+    >>> import specwell as sw
+    >>> stack = sw.Heterostructure([sw.Layer(20.0, 250.0, 0.092), sw.Layer(10.0, 0.0, 0.067),
+    ...                             sw.Layer(20.0, 250.0, 0.092)])
+    >>> st = stack.solve()
+    >>> bool(st.bound.all()), bool(0.0 < st.energies[0] < 250.0)
+    (True, True)
     """
 
     def __new__(cls, layers: Sequence[Layer], field_kv_cm: float = 0.0) -> Heterostructure: ...
@@ -657,9 +1061,30 @@ class Heterostructure:
     def interfaces(self) -> npt.NDArray[np.float64]:
         """Interface positions 0 = z_0 < … < z_n = L (nm)."""
     def potential(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
-        """V(z) (meV): band edge plus field term, at points z (nm)."""
+        """V(z) (meV): band edge plus field term, at points z (nm).
+
+        Parameters
+        ----------
+        z : array_like
+            Positions (nm, finite); beyond both ends the claddings continue.
+
+        Returns
+        -------
+        ndarray, shape (len(z),)
+            At an interface, the value of the layer on its right.
+        """
     def mass(self, z: npt.ArrayLike) -> npt.NDArray[np.float64]:
-        """m(z) (m_e) at points z (nm)."""
+        """m(z) (m_e) at points z (nm).
+
+        Parameters
+        ----------
+        z : array_like
+            Positions (nm, finite).
+
+        Returns
+        -------
+        ndarray, shape (len(z),)
+        """
     def self_consistent(self, temperature: float, *, fermi_level: Optional[float] = None,
                         surface_barrier: Optional[float] = None, tol: float = 1e-6, max_iter: int = 100,
                         exchange_correlation: bool = False, accuracy: float = 1e-10,
@@ -722,18 +1147,21 @@ class Heterostructure:
         elements that grow outwards to where the wanted levels have decayed. Levels are
         computed at orders p and p + 2 on one mesh until |E(p+2) − E(p)| ≤
         accuracy·max(|E|, E − V_min) for every requested level (V_min the lowest band edge);
-        the p + 2 levels are returned with those differences as ``errors``. Model: single-band
-        BenDaniel-Duke, parabolic bands; material parameters are the user's.
+        the p + 2 levels are returned with those differences as ``errors``. Layers with a
+        non-parabolicity α ≠ 0 are solved level by level for the fixed point E_i = λ_i(H(E_i))
+        with the energy-dependent masses m(E) = m(1 + α(E − E_c)).
 
         Parameters
         ----------
         count : int, optional
-            Number of levels; None: all bound levels (below both cladding edges).
-        accuracy : float
+            Number of levels, 1 ≤ count ≤ 100000; default None: all bound levels (below both
+            cladding edges). Levels above the cladding edges are box states of the truncated
+            claddings (``bound`` False), not resonances.
+        accuracy : float, default 1e-10
             Relative accuracy in [1e-13, 1e-2].
         order : int, optional
-            Starting element order (default from the accuracy).
-        element_length : float
+            Starting element order, 2 ≤ order ≤ 62; default None: chosen from the accuracy.
+        element_length : float, keyword-only, default 15.0
             Longest element inside a layer (nm); shortened for the wavenumbers of the levels.
 
         Returns
@@ -741,6 +1169,22 @@ class Heterostructure:
         Spectrum
             On an ``ElementBasis``; ``errors`` and ``bound`` are set, wavefunctions evaluate
             anywhere (0 beyond the cladding depth, where the tails are below the accuracy).
+
+        Raises
+        ------
+        ValueError
+            count, accuracy or order out of range; an accuracy the mesh refinement cannot
+            reach.
+
+        Warns
+        -----
+        AccuracyWarning
+            Round-off limits some level (see ``Spectrum.attainable_accuracy``).
+
+        Notes
+        -----
+        ``errors`` estimate the discretisation error of the single-band model, not the error of
+        the model or of the layer parameters, which usually dominates (meV, not 1e-10 relative).
         """
     def bands(self, q: Union[float, npt.ArrayLike], count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
         """Minibands E_n(q) (meV) of the infinite superlattice whose period is this stack.
@@ -772,17 +1216,69 @@ class Heterostructure:
             non-finite q, count or accuracy out of range.
         """
     def minibands(self, count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
-        """Bottom and top (meV) of each of the lowest ``count`` minibands, shape (count, 2),
-        from q = 0 and q = π/d (a 1D band is monotonic in |q| between them)."""
+        """Bottom and top (meV) of each of the lowest ``count`` minibands.
+
+        From the bands at q = 0 and q = π/d (a 1D band is monotonic in |q| between them).
+
+        Parameters
+        ----------
+        count : int
+            Number of minibands, 1 ≤ count ≤ 10000.
+        accuracy : float, keyword-only, default 1e-10
+            Relative accuracy in [1e-13, 1e-3] (see ``bands``).
+
+        Returns
+        -------
+        ndarray, shape (count, 2)
+            (bottom, top) per band.
+
+        Raises
+        ------
+        ValueError
+            As for ``bands``.
+        """
     def miniband_widths(self, count: int, *, accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
-        """Widths (meV) of the lowest ``count`` minibands, top − bottom, shape (count,)."""
+        """Widths (meV) of the lowest ``count`` minibands, top − bottom.
+
+        Parameters
+        ----------
+        count : int
+            Number of minibands, 1 ≤ count ≤ 10000.
+        accuracy : float, keyword-only, default 1e-10
+            Relative accuracy in [1e-13, 1e-3] (see ``bands``).
+
+        Returns
+        -------
+        ndarray, shape (count,)
+
+        Notes
+        -----
+        A narrow band's width is a difference of two nearly equal energies: its relative
+        error is about accuracy·|E|/width, not ``accuracy``.
+        """
     def band_mass(self, band: Optional[int] = None, *, accuracy: float = 1e-10) -> float:
-        """Effective mass m* (m_e) at the bottom of miniband ``band`` (None: band 0).
+        """Effective mass m* (m_e) at the bottom of a miniband.
 
         m* = 2(ħ²/2m_e)/(d²E/dq²), the curvature from second-order perturbation theory in
         the Bloch phase on the discretised bands. The bottom of band n lies at q = 0 for
-        even n and at q = π/d for odd n. A band edge touching its neighbour (closed gap) is
-        a ValueError.
+        even n and at q = π/d for odd n.
+
+        Parameters
+        ----------
+        band : int, optional
+            Band index (≥ 0); default None means band 0.
+        accuracy : float, keyword-only, default 1e-10
+            Relative accuracy of the bands in [1e-13, 1e-3].
+
+        Returns
+        -------
+        float
+
+        Raises
+        ------
+        ValueError
+            A band edge touching its neighbour (closed gap), a field, non-parabolic layers,
+            ``band`` or ``accuracy`` out of range.
         """
     def transmission(self, energies: Union[float, npt.ArrayLike], *, reflection: bool = False,
                      accuracy: float = 1e-10) -> Union[float, Tuple[float, float], npt.NDArray[np.float64],
@@ -840,10 +1336,40 @@ class Heterostructure:
             Relative tolerance of the energy integral, in [1e-10, 1e-2].
         mesh_accuracy : float
             Accuracy of T(E) (see ``transmission``), in [1e-13, 1e-3].
+
+        Returns
+        -------
+        float
+            J (A/cm²), with the sign of μ_L − μ_R (positive for bias > 0, electrons flowing
+            from the left lead to the right one).
+
+        Raises
+        ------
+        ValueError
+            Non-finite bias, non-positive temperature, accuracy or mesh_accuracy out of range,
+            non-parabolic layers.
+
+        Notes
+        -----
+        Coherent tunnelling only (no scattering, no charge self-consistency, the bias drops
+        linearly across the stack): a model for trends, not device currents.
         """
     def current_voltage(self, biases: npt.ArrayLike, temperature: float, fermi_level: float, *,
                         accuracy: float = 1e-8, mesh_accuracy: float = 1e-10) -> npt.NDArray[np.float64]:
-        """``current_density`` at every bias (V), in parallel over the biases; shape (len(biases),)."""
+        """``current_density`` at every bias, in parallel over the biases (GIL released).
+
+        Parameters
+        ----------
+        biases : array_like
+            Biases (volts, finite).
+        temperature, fermi_level, accuracy, mesh_accuracy
+            As for ``current_density`` (``accuracy`` and ``mesh_accuracy`` keyword-only).
+
+        Returns
+        -------
+        ndarray, shape (len(biases),)
+            J (A/cm²).
+        """
     def __len__(self) -> int: ...
 
 @final
@@ -859,29 +1385,35 @@ class SplitStep:
         ProductGrid f(x, y[, z]), called once with broadcastable coordinate arrays
         (``grid.mesh(sparse=True)``) and returning the grid's shape (or a shape that broadcasts
         to it, or a number), or an array of exactly ``grid.shape``.
-    mass : float
-        Particle mass (> 0).
+    mass : float, default 1.0
+        Particle mass (> 0, mass unit of ``units``); a single number (a position-dependent
+        mass does not split into kinetic and potential steps).
     dt : float
-        Time step (time units; nonzero; > 0 in imaginary time).
-    order : {2, 4}
-        2: Strang splitting; 4: Yoshida (1990) composition of three Strang steps.
-    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
+        Time step (time units; finite, nonzero; > 0 in imaginary time and with
+        ``absorber_potential``). Required: the default None raises TypeError.
+    order : {2, 4}, optional
+        2 (default None means 2): Strang splitting; 4: Yoshida (1990) composition of three
+        Strang steps (not in imaginary time).
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}, default "natural"
         Unit system ("cold-atom": µm, ms, u, energies in ħ/ms so that ħ = 1).
     drive : callable or array_like, optional
-        f(t) of V(x,t) = V0(x) + f(t)·V1(x). A callable is evaluated (vectorised if it can be)
-        at the sub-step midpoints of each run before the loop starts, keeping full order;
-        an array gives f at the step midpoints t_n + dt/2 (second order in the drive for order=4).
-        Both run at the same speed: the samples are taken before the GIL is released.
+        f(t) of V(x,t) = V0(x) + f(t)·V1(x); needs ``drive_potential``. A callable is called
+        once per run with the array of sub-step sample times (it must be vectorised: f(t_array)
+        → array; see ``drive_sample_times``), keeping full order; an array gives f at the step
+        midpoints t_n + dt/2, one per step (second order in the drive for order=4). Both run at
+        the same speed: the samples are taken before the GIL is released.
     drive_potential : callable or array_like, optional
-        V1 (energy per unit of f), like ``potential``; e.g. ``lambda x: x`` for a uniform field.
+        V1 (energy per unit of f), like ``potential``; e.g. ``lambda x: x`` for a uniform
+        field. Needs ``drive``.
     absorber_width : float, optional
-        Width of a smooth cos^(1/8) mask at every face of the box (absorption per step); at most
-        half the shortest side.
+        Width of a smooth cos^(1/8) mask at every face of the box (absorption per step); in
+        (0, half the shortest side]. Not with ``absorber_potential``.
     absorber_potential : callable or array_like, optional
         Complex absorbing potential W ≥ 0: V → V − iW (like ``potential``).
-    imaginary_time : bool
-        Propagate in imaginary time (use ``ground_states`` or ``ground_state``).
-    nonlinearity : float
+    imaginary_time : bool, default False
+        Propagate in imaginary time (use ``ground_states`` or ``ground_state``); not with a
+        drive or an absorber.
+    nonlinearity : float, default 0.0
         g of the Gross-Pitaevskii term: iħ∂ψ/∂t = [T + V + g|ψ|²]ψ with ψ normalised to
         Σ|ψ|²dV = 1, so g includes the atom number (energy·length^d). Default 0 (linear).
         The potential sub-steps take the exact phase exp(−i(V + g|ψ|²)w·dt/ħ), keeping order 2
@@ -893,9 +1425,31 @@ class SplitStep:
     Raises
     ------
     ValueError
-        An argument outside its range, a potential of the wrong shape, g not finite.
+        An argument outside its range, a potential of the wrong shape, g not finite, an
+        option combination listed above.
     TypeError
-        Wrong grid type, non-numeric input.
+        Wrong grid type, non-numeric input, ``dt`` missing, an array ``mass``.
+    MemoryError
+        The phase tables would not fit in memory.
+
+    Notes
+    -----
+    Periodic boundaries: a packet leaving one face re-enters at the other unless absorbed.
+    The splitting error is O(dt²) (order 2) or O(dt⁴) (order 4) per unit time; the grid must
+    resolve the largest momentum reached (|k| < π/dx). ``Run.norm`` and ``Run.energy`` are
+    diagnostics, not accuracy guarantees: check convergence by halving ``dt``.
+
+    Examples
+    --------
+    A displaced Gaussian in a harmonic trap returns after one period 2π:
+
+    >>> import numpy as np
+    >>> import specwell as sw
+    >>> g = sw.FourierGrid(-10.0, 10.0, 128)
+    >>> prop = sw.SplitStep(g, 0.5 * g.x**2, dt=2 * np.pi / 1000, order=4)
+    >>> run = prop.run(sw.gaussian_packet(g, 1.0, sigma=np.sqrt(0.5)), 1000, record_every=500)
+    >>> np.round(run.mean_x, 6)
+    array([ 1., -1.,  1.])
     """
 
     def __new__(cls, grid: Union[FourierGrid, ProductGrid], potential: _GridPotentialLike, mass: float = 1.0,
@@ -921,9 +1475,11 @@ class SplitStep:
         steps : int
             Number of time steps (≥ 0).
         record_every : int, optional
-            Record every this many steps (default 1); the final state is always recorded.
-        progress : bool
-            Show a tqdm progress bar (extra ``progress``); Ctrl-C interrupts the run.
+            Record every this many steps (≥ 1; default None means 1); the final state is
+            always recorded.
+        progress : bool, default False
+            Show a tqdm progress bar (extra ``progress``). Ctrl-C interrupts the run
+            (KeyboardInterrupt) with or without it.
 
         Returns
         -------
@@ -934,9 +1490,33 @@ class SplitStep:
         MemoryError
             If the recorded snapshots would not fit in memory (raise ``record_every``); refused
             before any step is taken.
+        ValueError
+            ``psi0`` of the wrong shape or not finite, ``steps`` or ``record_every`` out of range.
+        KeyboardInterrupt
+            The run was interrupted (Ctrl-C).
         """
     def run_many(self, psi0s: npt.ArrayLike, steps: int, record_every: Optional[int] = None) -> list[Run]:
-        """Propagate the states ``psi0s[i]`` (shape (M, *grid.shape)) in parallel across cores."""
+        """Propagate several initial states in parallel across cores (GIL released).
+
+        Parameters
+        ----------
+        psi0s : array_like, shape (M, N) or (M, *grid.shape)
+            M ≥ 1 initial states (as for ``run``).
+        steps : int
+            Number of time steps (≥ 0), the same for every state.
+        record_every : int, optional
+            Record every this many steps (≥ 1; default None means 1).
+
+        Returns
+        -------
+        list of Run
+            One per initial state, in order.
+
+        Raises
+        ------
+        ValueError
+            ``psi0s`` of the wrong shape, ``steps`` or ``record_every`` out of range.
+        """
     def ground_states(self, count: int, tol: float = 1e-9, max_steps: Optional[int] = None,
                       seed: Optional[int] = None) -> Tuple[npt.NDArray[np.float64], npt.NDArray[np.complex128]]:
         """Lowest ``count`` states by imaginary-time propagation with Gram-Schmidt (imaginary_time=True).
@@ -946,15 +1526,81 @@ class SplitStep:
         returned energy is the chemical potential μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (see ``ground_state``
         for the energy functional too).
 
+        Parameters
+        ----------
+        count : int
+            Number of states, 1 ≤ count ≤ number of grid points.
+        tol : float, default 1e-9
+            Stop when max_i |ΔE_i|/Δτ < ``tol`` (> 0; energy per time unit), checked every 10
+            steps; the states are then refined by a Rayleigh-Ritz step in their span.
+        max_steps : int, optional
+            Imaginary-time step limit (≥ 1); default None means 200000.
+        seed : int, optional
+            Seed of the random start states, in [0, 2**63); default None means a fixed seed.
+
         Returns
         -------
         energies : ndarray, shape (count,)
         states : ndarray of complex128, shape (count, N) or (count, *grid.shape), Σ|ψ|²dV = 1
+
+        Raises
+        ------
+        ValueError
+            The propagator is not in imaginary time; count, tol or max_steps out of range.
+        ConvergenceError
+            ``tol`` not reached within ``max_steps`` (its ``rates`` hold the last |dE/dτ|).
+
+        Notes
+        -----
+        Linear case: the fixed point is an eigenstate of the split operator, O(dτ²) away from
+        the grid eigenstate; the energies (Rayleigh quotients of the grid H) are O(dτ⁴)
+        accurate. ``Hamiltonian.solve`` on the same grid has no dτ error. With g ≠ 0 the
+        state is refined to the grid minimum of the energy functional (independent of dτ).
         """
     def ground_state(self, tol: float = 1e-9, max_steps: Optional[int] = None, seed: Optional[int] = None) -> GroundState:
-        """The ground state by imaginary time (imaginary_time=True), with μ, E and its residual."""
+        """The ground state by imaginary time (imaginary_time=True), with μ, E and its residual.
+
+        Parameters
+        ----------
+        tol : float, default 1e-9
+            Stop the imaginary-time flow when |Δμ|/Δτ < ``tol`` (> 0; energy per time unit);
+            with g ≠ 0 the state is then refined by conjugate gradients to the grid minimum of
+            the energy functional.
+        max_steps : int, optional
+            Imaginary-time step limit (≥ 1); default None means 200000.
+        seed : int, optional
+            Seed of the random start state, in [0, 2**63); default None means a fixed seed.
+
+        Returns
+        -------
+        GroundState
+
+        Raises
+        ------
+        ValueError
+            The propagator is not in imaginary time; tol or max_steps out of range.
+        ConvergenceError
+            ``tol`` not reached within ``max_steps``.
+        """
     def drive_sample_times(self, steps: int) -> npt.NDArray[np.float64]:
-        """Times at which a callable drive is evaluated for a run of ``steps`` steps."""
+        """Times at which a callable drive is evaluated for a run of ``steps`` steps.
+
+        Parameters
+        ----------
+        steps : int
+            Number of steps of the run (≥ 0).
+
+        Returns
+        -------
+        ndarray
+            Sample times relative to the start of the run (t0 = 0), in the order the drive
+            callable receives them.
+
+        Raises
+        ------
+        MemoryError
+            The samples for this many steps would not fit in memory.
+        """
     @property
     def dt(self) -> float:
         """Time step."""
@@ -1068,17 +1714,81 @@ class Run:
     def units(self) -> str:
         """Unit system name."""
     def save(self, path: str) -> None:
-        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
+        """Save to a ``.npz`` file readable with numpy alone (see :func:`specwell.save`).
+
+        Parameters
+        ----------
+        path : str or path-like
+            Destination; numpy appends ``.npz`` if missing.
+        """
     def __len__(self) -> int: ...
 
 def unit_constants(units: str) -> Tuple[float, float]:
-    """(ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time (m₁ the mass unit: m_e, or u for "cold-atom" and "molecular")."""
+    """(ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time.
+
+    m₁ is the system's mass unit: m_e, or u for "cold-atom" and "molecular".
+
+    Parameters
+    ----------
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
+
+    Returns
+    -------
+    (float, float)
+
+    Raises
+    ------
+    ValueError
+        Unknown units.
+
+    Examples
+    --------
+    >>> import specwell as sw
+    >>> sw.unit_constants("natural")
+    (0.5, 1.0)
+    """
 
 def angular_frequency(frequency_hz: float, units: str = "cold-atom") -> float:
-    """ω = 2πf in radians per time unit of ``units`` for a frequency f in Hz (≥ 0; natural units have no time unit)."""
+    """ω = 2πf in radians per time unit of ``units`` for a frequency f in Hz.
+
+    Parameters
+    ----------
+    frequency_hz : float
+        f (Hz, finite, ≥ 0).
+    units : str, default "cold-atom"
+        A unit system with a time unit (not "natural").
+
+    Returns
+    -------
+    float
+
+    Raises
+    ------
+    ValueError
+        Negative or non-finite frequency, unknown units or "natural".
+    """
 
 def oscillator_length(mass: float, frequency_hz: float, units: str = "cold-atom") -> float:
-    """Harmonic-oscillator length √(ħ/(mω)) (length units) of a particle of ``mass`` in a trap of ``frequency_hz``."""
+    """Harmonic-oscillator length √(ħ/(mω)) (length units) of a particle in a trap.
+
+    Parameters
+    ----------
+    mass : float
+        Particle mass (> 0; mass unit of ``units``: u for "cold-atom").
+    frequency_hz : float
+        Trap frequency ω/2π (Hz, > 0).
+    units : str, default "cold-atom"
+        A unit system with a time unit (not "natural").
+
+    Returns
+    -------
+    float
+
+    Raises
+    ------
+    ValueError
+        Non-positive mass or frequency, unknown units or "natural".
+    """
 
 def coupling_constant(scattering_length: float, atom_number: float, mass: float, dims: int = 3,
                       confinement_hz: Optional[float] = None, units: str = "cold-atom") -> float:
@@ -1106,6 +1816,12 @@ def coupling_constant(scattering_length: float, atom_number: float, mass: float,
     -------
     float
         g in energy·length^dims.
+
+    Raises
+    ------
+    ValueError
+        Non-finite scattering length, non-positive atom number or mass, dims outside {1, 2, 3},
+        ``confinement_hz`` missing or non-positive for dims 1 and 2, unknown units.
     """
 
 @final
@@ -1119,10 +1835,33 @@ class Batch:
     def residuals(self) -> npt.NDArray[np.float64]:
         """Residual norms, shape (M, count)."""
     def wavefunctions(self, index: int, x: Optional[npt.ArrayLike] = None) -> npt.NDArray[np.float64]:
-        """ψ_n(x) of item ``index``, shape (count, len(x))."""
+        """ψ_n(x) of item ``index``, shape (count, len(x)) (see ``Spectrum.wavefunctions``).
+
+        Parameters
+        ----------
+        index : int
+            Item index (negative counts from the end).
+        x : array_like, optional
+            Points (length units); default None: the basis' own points.
+
+        Returns
+        -------
+        ndarray, shape (count, len(x))
+
+        Raises
+        ------
+        IndexError
+            ``index`` out of range.
+        """
     def __getitem__(self, key: int, /) -> Spectrum: ...
     def save(self, path: str) -> None:
-        """Save to an ``.npz`` file readable with numpy alone (see ``specwell.save``)."""
+        """Save to a ``.npz`` file readable with numpy alone (see :func:`specwell.save`).
+
+        Parameters
+        ----------
+        path : str or path-like
+            Destination; numpy appends ``.npz`` if missing.
+        """
     def __len__(self) -> int: ...
 
 def solve_batch(basis: Union[HermiteBasis, FourierGrid, ElementBasis, None],
@@ -1154,6 +1893,17 @@ def solve_batch(basis: Union[HermiteBasis, FourierGrid, ElementBasis, None],
     Returns
     -------
     Batch
+        ``energies`` and ``residuals`` of shape (M, count); item i is a Spectrum.
+
+    Raises
+    ------
+    ValueError
+        As for ``Hamiltonian`` and ``Hamiltonian.solve`` (the message names
+        ``potentials[i]``), potentials of the wrong shape, ``mass`` with Heterostructures.
+    TypeError
+        Heterostructures with a basis, or other items without one.
+    ConvergenceError
+        An iterative item missed ``tol``.
     """
 
 def _layer_from_parts(thickness: float, band_edge: float, mass: float, doping: float,

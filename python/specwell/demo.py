@@ -30,13 +30,35 @@ BARRIER_MEV, M_WELL, M_BARRIER = 280.0, 0.067, 0.09
 
 
 def coupled_wells(field_kv_cm: float = 0.0) -> sw.Heterostructure:
-    """Barrier | 9 nm well | 2 nm barrier | 6 nm well | barrier (illustrative)."""
+    """Barrier | 9 nm well | 2 nm barrier | 6 nm well | barrier (illustrative numbers).
+
+    Parameters
+    ----------
+    field_kv_cm : float, default 0.0
+        Field across the stack (kV/cm).
+
+    Returns
+    -------
+    Heterostructure
+    """
     return sw.Heterostructure([sw.Layer(15, BARRIER_MEV, M_BARRIER), sw.Layer(9, 0.0, M_WELL),
                                sw.Layer(2, BARRIER_MEV, M_BARRIER), sw.Layer(6, 0.0, M_WELL),
                                sw.Layer(15, BARRIER_MEV, M_BARRIER)], field_kv_cm=field_kv_cm)
 
 
 def main(argv=None) -> int:
+    """Run the demo from the command line (``python -m specwell.demo``).
+
+    Parameters
+    ----------
+    argv : list of str, optional
+        Command-line arguments (default: ``sys.argv[1:]``): ``--no-plot``, ``--out PATH``.
+
+    Returns
+    -------
+    int
+        Exit status (0).
+    """
     parser = argparse.ArgumentParser(prog="python -m specwell.demo", description=__doc__.splitlines()[0])
     parser.add_argument("--no-plot", action="store_true", help="do not write the PNG figure")
     parser.add_argument("--out", default="specwell_demo.png", help="figure path (default: %(default)s)")

@@ -89,6 +89,11 @@ def save(result, path: Union[str, os.PathLike]) -> None:
         The result to save.
     path : str or path-like
         Destination; numpy appends ``.npz`` if missing.
+
+    Raises
+    ------
+    TypeError
+        ``result`` is not a Spectrum, Batch or Run.
     """
     if isinstance(result, _core.Spectrum):
         header = {"format": _FORMAT, "version": _VERSION, "type": "Spectrum", "method": result.method,
@@ -136,9 +141,21 @@ def save(result, path: Union[str, os.PathLike]) -> None:
 def load(path: Union[str, os.PathLike]):
     """Load a result written by :func:`save`.
 
+    Parameters
+    ----------
+    path : str or path-like
+        A ``.npz`` file written by ``specwell.save`` (read without pickle).
+
     Returns
     -------
-    Spectrum or another specwell result
+    Spectrum, Batch or Run
+        Rebuilt with its Hamiltonian (Spectrum, Batch) or grid (Run); the numbers are the
+        saved ones, bit for bit.
+
+    Raises
+    ------
+    ValueError
+        Not a specwell result file, or an unknown result type.
     """
     with np.load(path, allow_pickle=False) as f:
         header = json.loads(str(f["header"]))
@@ -184,7 +201,13 @@ _LOADERS: dict = {"Run": _load_run, "Batch": _load_batch}
 
 
 def _save_method(self, path: Union[str, os.PathLike]) -> None:
-    """Save to a ``.npz`` file (see :func:`specwell.save`)."""
+    """Save to a ``.npz`` file readable with numpy alone (see :func:`specwell.save`).
+
+    Parameters
+    ----------
+    path : str or path-like
+        Destination; numpy appends ``.npz`` if missing.
+    """
     save(self, path)
 
 

@@ -49,18 +49,29 @@ def gaussian_packet(grid, x0, p0=0.0, sigma=1.0, units: str = "natural") -> np.n
     x0 : float, or sequence of float (one per axis of a ProductGrid)
         Centre ⟨x⟩ (length units); must lie inside the grid box on every axis. On a
         ProductGrid give one value per axis.
-    p0 : float or sequence of float
+    p0 : float or sequence of float, default 0.0
         Mean momentum ⟨p⟩ (energy·time/length in the unit system; ħk in natural units);
         a single number applies to every axis.
-    sigma : float or sequence of float
+    sigma : float or sequence of float, default 1.0
         Position standard deviation σ (> 0, length units); |ψ|² has width σ along each axis.
-    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
+    units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}, default "natural"
         Unit system (fixes ħ).
 
     Returns
     -------
     ndarray of complex128, shape ``(grid.points,)`` on a FourierGrid, ``grid.shape`` on a
     ProductGrid; normalised to Σ|ψ|² dx = 1 (Σ|ψ|² dV = 1).
+
+    Raises
+    ------
+    ValueError
+        ``x0`` outside the box, non-positive or non-finite ``sigma``, a per-axis argument of
+        the wrong length.
+
+    Notes
+    -----
+    The packet is sampled, not periodised: keep it several σ away from the box edges, or the
+    cut tails (and the periodic images in propagation) matter.
     """
     from specwell import _core
 
@@ -101,7 +112,28 @@ def gaussian_packet(grid, x0, p0=0.0, sigma=1.0, units: str = "natural") -> np.n
 
 
 def eigenstate(spectrum, n: int, grid) -> np.ndarray:
-    """State ``n`` of ``spectrum`` sampled on ``grid`` (complex128, normalised)."""
+    """State ``n`` of ``spectrum`` sampled on ``grid`` as an initial state for ``SplitStep.run``.
+
+    Parameters
+    ----------
+    spectrum : Spectrum
+        Result of ``Hamiltonian.solve`` (any basis).
+    n : int
+        State index, 0 ≤ n < spectrum.count.
+    grid : FourierGrid
+        Grid to sample on (``spectrum.wavefunctions(grid.x)``).
+
+    Returns
+    -------
+    ndarray of complex128, shape (grid.points,)
+        Renormalised on the grid, Σ|ψ|² dx = 1 (sampling on a grid other than the
+        spectrum's own changes the discrete norm slightly).
+
+    Raises
+    ------
+    ValueError
+        ``n`` out of range, or a state that vanishes on the grid.
+    """
     if not 0 <= n < spectrum.count:
         raise ValueError(f"`n` must be an integer in [0, {spectrum.count - 1}]; got {n}")
     psi = spectrum.wavefunctions(grid.x)[n].astype(np.complex128)
@@ -109,7 +141,28 @@ def eigenstate(spectrum, n: int, grid) -> np.ndarray:
 
 
 def superposition(states: Sequence[np.ndarray], coefficients: Sequence[complex], grid) -> np.ndarray:
-    """Normalised Σ c_i ψ_i of states sampled on ``grid``."""
+    """Normalised Σ c_i ψ_i of states sampled on ``grid``.
+
+    Parameters
+    ----------
+    states : sequence of ndarray
+        States sampled on ``grid`` (shape (grid.points,) each), e.g. from ``eigenstate``.
+    coefficients : sequence of complex
+        One coefficient c_i per state.
+    grid : FourierGrid
+        The grid the states are sampled on.
+
+    Returns
+    -------
+    ndarray of complex128, shape (grid.points,)
+        Normalised to Σ|ψ|² dx = 1 (the c_i are relative weights).
+
+    Raises
+    ------
+    ValueError
+        No states, a coefficient count that differs from the state count, a state of the
+        wrong shape, or a sum that vanishes.
+    """
     states = [np.asarray(s, dtype=np.complex128) for s in states]
     coefficients = np.asarray(coefficients, dtype=np.complex128)
     if len(states) == 0 or len(states) != len(coefficients):
@@ -136,11 +189,11 @@ def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, uni
         not a multiple of ``record_every`` the final, closer record is dropped here).
     autocorrelation : ndarray
         C(t) at those times.
-    units : str
+    units : str, default "natural"
         Unit system (fixes ħ).
-    window : {"hann", "gaussian", "none"}
+    window : {"hann", "gaussian", "none"}, default "hann"
         Window against truncation ripples.
-    pad : int
+    pad : int, default 4
         Zero padding factor (≥ 1) for a finer energy grid.
     energy_range : (float, float), optional
         Keep only energies in this interval.
@@ -149,6 +202,11 @@ def autocorrelation_spectrum(times: np.ndarray, autocorrelation: np.ndarray, uni
     -------
     energies, intensity : ndarray
         Ascending energies and |spectrum| (arbitrary units).
+
+    Raises
+    ------
+    ValueError
+        Arrays not 1-D of equal length ≥ 4, times not uniform, unknown window, pad < 1.
     """
     t = np.asarray(times, dtype=float)
     c = np.asarray(autocorrelation, dtype=np.complex128)

@@ -6,7 +6,23 @@ use crate::model::units::Units;
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
 
-/// ω = 2π f (radians per time unit of `units`) of a frequency f in Hz.
+/// ω = 2πf in radians per time unit of ``units`` for a frequency f in Hz.
+///
+/// Parameters
+/// ----------
+/// frequency_hz : float
+///     f (Hz, finite, ≥ 0).
+/// units : str, default "cold-atom"
+///     A unit system with a time unit (not "natural").
+///
+/// Returns
+/// -------
+/// float
+///
+/// Raises
+/// ------
+/// ValueError
+///     Negative or non-finite frequency, unknown units or "natural".
 #[pyfunction]
 #[pyo3(signature = (frequency_hz, units="cold-atom"))]
 pub fn angular_frequency(py: Python<'_>, frequency_hz: f64, units: &str) -> PyResult<f64> {
@@ -14,7 +30,25 @@ pub fn angular_frequency(py: Python<'_>, frequency_hz: f64, units: &str) -> PyRe
     u.angular_frequency(frequency_hz).py(py)
 }
 
-/// The oscillator length √(ħ/(mω)) of a trap of frequency `frequency_hz` (Hz).
+/// Harmonic-oscillator length √(ħ/(mω)) (length units) of a particle in a trap.
+///
+/// Parameters
+/// ----------
+/// mass : float
+///     Particle mass (> 0; mass unit of ``units``: u for "cold-atom").
+/// frequency_hz : float
+///     Trap frequency ω/2π (Hz, > 0).
+/// units : str, default "cold-atom"
+///     A unit system with a time unit (not "natural").
+///
+/// Returns
+/// -------
+/// float
+///
+/// Raises
+/// ------
+/// ValueError
+///     Non-positive mass or frequency, unknown units or "natural".
 #[pyfunction]
 #[pyo3(signature = (mass, frequency_hz, units="cold-atom"))]
 pub fn oscillator_length(py: Python<'_>, mass: f64, frequency_hz: f64, units: &str) -> PyResult<f64> {
@@ -25,7 +59,36 @@ pub fn oscillator_length(py: Python<'_>, mass: f64, frequency_hz: f64, units: &s
     atoms::oscillator_length(u, mass, u.angular_frequency(frequency_hz).py(py)?).py(py)
 }
 
-/// g of the Gross-Pitaevskii equation (ψ normalised to 1) in `dims` dimensions.
+/// g of ``SplitStep(..., nonlinearity=g)`` for N atoms with s-wave scattering length a (ψ normalised to 1).
+///
+/// Parameters
+/// ----------
+/// scattering_length : float
+///     a (length units of ``units``: µm for "cold-atom"); negative for attraction.
+/// atom_number : float
+///     N (> 0).
+/// mass : float
+///     Atom mass (mass unit: u for "cold-atom").
+/// dims : {1, 2, 3}
+///     3: g₃ = 4πħ²aN/m (Pitaevskii & Stringari 2003); 2: quasi-2D, g₂ = g₃/(√(2π) a_z)
+///     (Petrov, Holzmann & Shlyapnikov 2000); 1: quasi-1D, g₁ = g₃/(2π a_⊥²) = 2ħω_⊥aN
+///     (Olshanii 1998); a_z, a_⊥ = √(ħ/(mω)) of the tight confinement. Leading terms, valid
+///     for a ≪ a_z, a_⊥.
+/// confinement_hz : float, optional
+///     Frequency (Hz) of the frozen direction(s): ω_z/2π (dims=2) or ω_⊥/2π (dims=1); None for dims=3.
+/// units : str
+///     Unit system (default "cold-atom").
+///
+/// Returns
+/// -------
+/// float
+///     g in energy·length^dims.
+///
+/// Raises
+/// ------
+/// ValueError
+///     Non-finite scattering length, non-positive atom number or mass, dims outside {1, 2, 3},
+///     ``confinement_hz`` missing or non-positive for dims 1 and 2, unknown units.
 #[pyfunction]
 #[pyo3(signature = (scattering_length, atom_number, mass, dims=None, confinement_hz=None, units="cold-atom"),
        text_signature = "(scattering_length, atom_number, mass, dims=3, confinement_hz=None, units=\"cold-atom\")")]

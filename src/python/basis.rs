@@ -10,7 +10,36 @@ use pyo3::prelude::*;
 use pyo3::types::PyType;
 use std::sync::Arc;
 
-/// Gauss-Hermite function basis χ_n(x) = ψ_n((x − center)/length)/sqrt(length).
+/// Gauss-Hermite function basis χ_n(x) = ψ_n((x − center)/length)/sqrt(length), n < size.
+///
+/// ψ_n are the orthonormal Hermite functions (harmonic-oscillator eigenfunctions of
+/// oscillator length ``length``). The kinetic matrix is exact (pentadiagonal in n);
+/// potentials are sampled at ``quadrature`` Gauss-Hermite nodes ``x``.
+///
+/// Parameters
+/// ----------
+/// size : int
+///     Number of functions, 1 ≤ size ≤ 20000.
+/// center : float, default 0.0
+///     Centre of the basis (length units, finite).
+/// length : float, default 1.0
+///     Oscillator length (> 0, length units). Best near √(ħ/(mω)) of the potential's
+///     harmonic part: the functions then resemble the states.
+/// quadrature : int, optional
+///     Number of quadrature nodes, size < quadrature ≤ 80000; default None means 2·size.
+///     Matrix elements of polynomial potentials of degree ≤ 2(quadrature − size) + 1 are exact.
+///
+/// Raises
+/// ------
+/// ValueError
+///     If an argument is outside its range (the message names it).
+/// TypeError
+///     ``size`` or ``quadrature`` not an integer.
+///
+/// Notes
+/// -----
+/// The basis reaches |x − center| ≲ length·sqrt(2·size): states that extend further, or
+/// potentials with steps, converge slowly; use a FourierGrid or an ElementBasis there.
 #[pyclass(name = "HermiteBasis", module = "specwell._core", frozen)]
 pub struct PyHermiteBasis {
     pub inner: Arc<HermiteBasis>,
@@ -37,25 +66,27 @@ impl PyHermiteBasis {
     fn size(&self) -> usize {
         self.inner.size()
     }
+    /// Centre of the basis.
     #[getter]
     fn center(&self) -> f64 {
         self.inner.center()
     }
+    /// Oscillator length.
     #[getter]
     fn length(&self) -> f64 {
         self.inner.length()
     }
-    /// Number of Gauss-Hermite quadrature nodes.
+    /// Number of quadrature nodes.
     #[getter]
     fn quadrature(&self) -> usize {
         self.inner.quadrature()
     }
-    /// Quadrature points x_k = center + length·ξ_k where potentials are sampled.
+    /// Quadrature points center + length·ξ_k where potentials are sampled, ascending.
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.points())
     }
-    /// Dimensionless Gauss-Hermite nodes ξ_k.
+    /// Dimensionless Gauss-Hermite nodes ξ_k (weight e^{−ξ²}).
     #[getter]
     fn nodes<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.nodes())
@@ -85,7 +116,34 @@ impl PyHermiteBasis {
     }
 }
 
-/// Periodic Fourier grid on [start, stop) with `points` points.
+/// Periodic grid on [start, stop) with ``points`` points (Fourier-grid basis).
+///
+/// Parameters
+/// ----------
+/// start, stop : float
+///     Box bounds (length units), finite, stop > start.
+/// points : int
+///     Number of grid points, 2 ≤ points ≤ 2**28.
+///
+/// Raises
+/// ------
+/// ValueError
+///     Non-finite bounds, stop ≤ start, points out of range.
+/// TypeError
+///     ``points`` not an integer.
+///
+/// Notes
+/// -----
+/// x_j = start + j·dx, dx = (stop − start)/points; k = 2π·fftfreq(points, dx). State
+/// coefficients in this basis are ψ(x_j)·sqrt(dx). The box is periodic: a state that does
+/// not vanish at the edges meets its own image; make the box wider than the states.
+///
+/// Examples
+/// --------
+/// >>> import specwell as sw
+/// >>> g = sw.FourierGrid(-5.0, 5.0, 100)
+/// >>> g.dx, float(g.x[0]), len(g)
+/// (0.1, -5.0, 100)
 #[pyclass(name = "FourierGrid", module = "specwell._core", frozen)]
 pub struct PyFourierGrid {
     pub inner: Arc<FourierGrid>,
@@ -99,14 +157,17 @@ impl PyFourierGrid {
         let inner = py.detach(|| FourierGrid::new(start, stop, points)).py(py)?;
         Ok(PyFourierGrid { inner: Arc::new(inner) })
     }
+    /// Left end of the box.
     #[getter]
     fn start(&self) -> f64 {
         self.inner.start()
     }
+    /// Right end of the box (excluded).
     #[getter]
     fn stop(&self) -> f64 {
         self.inner.stop()
     }
+    /// Number of grid points.
     #[getter]
     fn points(&self) -> usize {
         self.inner.len()
@@ -116,11 +177,12 @@ impl PyFourierGrid {
     fn size(&self) -> usize {
         self.inner.len()
     }
+    /// Grid spacing.
     #[getter]
     fn dx(&self) -> f64 {
         self.inner.dx()
     }
-    /// Grid points x_j = start + j·dx.
+    /// Grid points.
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.x())
@@ -154,7 +216,50 @@ impl PyFourierGrid {
     }
 }
 
-/// Legendre spectral elements on [b_0, b_m] (see `_core.pyi`).
+/// Legendre spectral elements: Lagrange polynomials of order ``order`` on the
+/// Gauss-Lobatto-Legendre nodes of every element, continuous across elements, ψ = 0 at
+/// both ends.
+///
+/// Elements have their edges on the given breakpoints (each interval one element, or
+/// split evenly into pieces no longer than ``max_element_length``). Put a breakpoint on
+/// every jump of the potential or the mass and on every kink of the potential: the
+/// levels then converge spectrally (exponentially in the order). The BenDaniel-Duke
+/// condition (ψ'/m continuous) is natural in the weak form. Potentials and masses are
+/// sampled on ``x``, the GLL nodes of every element with each element's two ends moved
+/// one ulp inward, so a callable with a jump at a breakpoint is evaluated on the side
+/// the element uses. Coefficient vectors are the nodal values ψ(nodes[1:-1]).
+///
+/// Parameters
+/// ----------
+/// breakpoints : array_like
+///     Strictly increasing, finite, at least two (length units).
+/// order : int, default 16
+///     Polynomial order p of every element, 2 ≤ p ≤ 64.
+/// max_element_length : float, optional
+///     Split intervals longer than this (> 0, length units) into equal elements; default None:
+///     one element per interval.
+///
+/// Raises
+/// ------
+/// ValueError
+///     Breakpoints not strictly increasing, fewer than two or not finite; order or
+///     max_element_length out of range.
+/// TypeError
+///     ``order`` not an integer.
+///
+/// Notes
+/// -----
+/// The Dirichlet ends are hard walls: put them where the wanted states have decayed.
+///
+/// Examples
+/// --------
+/// Infinite square well of width 1 (E_n = n²π²/2 in natural units):
+///
+/// >>> import numpy as np
+/// >>> import specwell as sw
+/// >>> st = sw.Hamiltonian(sw.ElementBasis([0.0, 0.5, 1.0]), lambda x: 0.0 * x).solve(2)
+/// >>> np.allclose(st.energies, np.array([1, 4]) * np.pi**2 / 2, rtol=1e-10)
+/// True
 #[pyclass(name = "ElementBasis", module = "specwell._core", frozen)]
 pub struct PyElementBasis {
     pub inner: Arc<ElementBasis>,
@@ -175,12 +280,12 @@ impl PyElementBasis {
     fn order(&self) -> usize {
         self.inner.order()
     }
-    /// Number of unknowns (n_elements·p − 1: Dirichlet ends).
+    /// Number of unknowns, n_elements·p − 1.
     #[getter]
     fn size(&self) -> usize {
         self.inner.size()
     }
-    /// Element edges b_0 < … < b_m after splitting (length n_elements + 1).
+    /// Element edges after splitting (length n_elements + 1).
     #[getter]
     fn edges<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_vec(py, self.inner.edges())
@@ -190,15 +295,12 @@ impl PyElementBasis {
     fn breakpoints<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.breakpoints())
     }
-    /// Sample points where potentials and masses are evaluated: the GLL nodes of every
-    /// element, each element's ends moved one ulp inward (a jump at a breakpoint is seen
-    /// from the correct side); length n_elements·(p+1).
+    /// Sample points of potentials and masses, length n_elements·(p+1) (element ends nudged inward).
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.points())
     }
-    /// Global nodes, both ends included (length n_elements·p + 1); the unknowns are the
-    /// values ψ at nodes[1:-1].
+    /// Global nodes including both ends (length n_elements·p + 1).
     #[getter]
     fn nodes<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.nodes())
@@ -215,7 +317,28 @@ impl PyElementBasis {
     }
 }
 
-/// Periodic product grid of two or three FourierGrids (see `_core.pyi`).
+/// Periodic 2D or 3D grid: the tensor product of FourierGrids (x, y[, z]).
+///
+/// Parameters
+/// ----------
+/// gx, gy : FourierGrid
+///     The x and y axes.
+/// gz : FourierGrid, optional
+///     The z axis (3D).
+///
+/// Notes
+/// -----
+/// States, potentials and absorbing potentials on the grid are arrays of shape ``shape`` =
+/// (nx, ny[, nz]) indexed [i, j(, l)] ↔ (x_i, y_j(, z_l)) (numpy C order, ``indexing="ij"``).
+/// The discrete norm is Σ|ψ|²·dV with dV = dx·dy(·dz). Split-step FFTs run along each axis
+/// with the axes' plans, over rayon workers for grids of 2**15 points or more.
+///
+/// Raises
+/// ------
+/// TypeError
+///     An axis is not a FourierGrid (the message names gx, gy or gz).
+/// ValueError
+///     More than 2**28 points in all.
 #[pyclass(name = "ProductGrid", module = "specwell._core", frozen)]
 pub struct PyProductGrid {
     pub inner: Arc<ProductGrid>,
@@ -242,11 +365,12 @@ impl PyProductGrid {
         let inner = py.detach(|| ProductGrid::new(grids)).py(py)?;
         Ok(PyProductGrid { inner: Arc::new(inner), axes })
     }
-    /// Points per axis.
+    /// Points per axis (nx, ny[, nz]).
     #[getter]
     fn shape(&self) -> Vec<usize> {
         self.inner.shape()
     }
+    /// Number of axes (2 or 3).
     #[getter]
     fn ndim(&self) -> usize {
         self.inner.ndim()
@@ -261,15 +385,17 @@ impl PyProductGrid {
     fn axes(&self, py: Python<'_>) -> Vec<Py<PyFourierGrid>> {
         self.axes.iter().map(|g| g.clone_ref(py)).collect()
     }
+    /// Points of the x axis.
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.axis(0).x())
     }
+    /// Points of the y axis.
     #[getter]
     fn y<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.axis(1).x())
     }
-    /// z points (None on a 2D grid).
+    /// Points of the z axis (None on a 2D grid).
     #[getter]
     fn z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         (self.inner.ndim() == 3).then(|| PyArray1::from_slice(py, self.inner.axis(2).x()))
@@ -279,22 +405,32 @@ impl PyProductGrid {
     fn spacing(&self) -> Vec<f64> {
         (0..self.inner.ndim()).map(|a| self.inner.axis(a).dx()).collect()
     }
-    /// Cell volume dV = dx·dy[·dz].
+    /// Cell volume dx·dy[·dz].
     #[getter(dV)]
     fn dv(&self) -> f64 {
         self.inner.cell_volume()
     }
-    /// Wave numbers of each axis, 2π·fftfreq(n, d).
+    /// Wave numbers 2π·fftfreq(n, d) of each axis.
     #[getter]
     fn k<'py>(&self, py: Python<'py>) -> Vec<Bound<'py, PyArray1<f64>>> {
         (0..self.inner.ndim()).map(|a| PyArray1::from_slice(py, self.inner.axis(a).k())).collect()
     }
-    /// |k|² = Σ k_a² on the grid's shape (FFT layout, numpy fftfreq order per axis).
+    /// |k|² = Σ k_a² on ``shape`` (FFT layout: numpy fftfreq order on every axis).
     #[getter]
     fn k_squared<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, numpy::PyArrayDyn<f64>>> {
         shaped_array(py, &self.inner.shape(), self.inner.k_squared())
     }
-    /// Coordinate arrays of the points (numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)).
+    /// Coordinate arrays of the grid points, ``numpy.meshgrid(x, y[, z], indexing="ij", sparse=sparse)``.
+    ///
+    /// Parameters
+    /// ----------
+    /// sparse : bool, default False
+    ///     Broadcastable arrays of shapes (nx, 1[, 1]), (1, ny[, 1]) … instead of full ones.
+    ///
+    /// Returns
+    /// -------
+    /// tuple of ndarray
+    ///     (X, Y) or (X, Y, Z).
     #[pyo3(signature = (sparse=false))]
     fn mesh<'py>(&self, py: Python<'py>, sparse: bool) -> PyResult<Bound<'py, PyAny>> {
         let np = py.import("numpy")?;

@@ -8,14 +8,14 @@ pyo3::create_exception!(
     specwell,
     ConvergenceError,
     PyRuntimeError,
-    "An iterative method missed its tolerance. Attributes: `energies` (best estimates), `iterations`, and `residuals` (eigensolvers) or `rates` |dE/dτ| (imaginary-time relaxation)."
+    "An iterative method missed its tolerance.\n\nAttributes\n----------\nenergies : list of float\n    Best energy estimates when the method stopped.\nresiduals : list of float\n    Their residual norms ‖Hψ − Eψ‖ (eigensolvers).\nrates : list of float\n    |dE/dτ| of each state at the last check (imaginary-time relaxation, instead of residuals).\niterations : int\n    Iterations (or imaginary-time steps) performed."
 );
 
 pyo3::create_exception!(
     specwell,
     AccuracyWarning,
     pyo3::exceptions::PyUserWarning,
-    "Round-off limits the accuracy of some computed levels (see `Spectrum.attainable_accuracy`)."
+    "Round-off limits the accuracy of some computed levels (see ``Spectrum.attainable_accuracy``)."
 );
 
 /// Emit the spectrum's accuracy warning, if any, as a `specwell.AccuracyWarning`.

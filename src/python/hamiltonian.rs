@@ -57,7 +57,59 @@ pub fn extract_mass(obj: &Bound<'_, PyAny>, basis: &BasisRef) -> PyResult<Mass> 
     Ok(Mass::Profile(vec_f64(obj, "mass", None)?))
 }
 
-/// H = T + V on a basis. See `specwell._core.pyi` for the documented signature.
+/// H = T + V of one particle on a basis: the single-band effective-mass Schrödinger operator.
+///
+/// T = −(ħ²/2m) d²/dx² for a constant mass, −(ħ²/2) d/dx (1/m(x)) d/dx (BenDaniel-Duke) for a
+/// mass profile, with ħ and the mass unit of ``units``. The matrix is built once; ``solve``,
+/// ``apply`` and ``matrix`` reuse it.
+///
+/// Parameters
+/// ----------
+/// basis : HermiteBasis, FourierGrid or ElementBasis
+///     The basis. A FourierGrid is periodic (states wrap around the box); an ElementBasis
+///     has ψ = 0 at both ends; a HermiteBasis decays like the oscillator functions.
+/// potential : callable or array_like or Heterostructure
+///     Vectorised V(x) called once with ``basis.x`` (returning a number means a constant), or
+///     samples on ``basis.x`` (energy units; finite, |V| ≤ 1e100). A Heterostructure (with
+///     ``units="semiconductor"`` and no ``mass``) gives the BenDaniel-Duke Hamiltonian of the
+///     layers: on an ElementBasis the element problem, on a FourierGrid the exact layer
+///     integrals in the mass coordinate (the grid sets the box and the number of modes); both
+///     are generalized problems A c = E B c (see ``overlap_matrix``).
+/// mass : float or array_like or callable, optional
+///     Particle mass (> 0) in the mass unit of ``units``; default None means 1. On a
+///     FourierGrid or an ElementBasis an array on ``basis.x`` (on elements also one value per
+///     element) or a callable gives a position-dependent mass; a HermiteBasis takes a number only.
+/// units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}, default "natural"
+///     "natural": ħ = 1, mass 1; "atomic": hartree, bohr, m_e; "semiconductor": nm, meV, m_e,
+///     fs; "cold-atom": µm, ħ/ms (so ħ = 1), u, ms; "molecular": Å, cm⁻¹, u (a reduced mass
+///     in daltons), fs.
+///
+/// Raises
+/// ------
+/// ValueError
+///     NaN/inf or wrong-length potential or mass, non-positive mass, unknown units, ``mass``
+///     given with a Heterostructure.
+/// TypeError
+///     Wrong basis type (a Heterostructure needs a FourierGrid or an ElementBasis), complex or
+///     non-numeric potential, a Heterostructure where a callable or array is expected.
+///
+/// Notes
+/// -----
+/// Model limits: one particle, one band, parabolic dispersion (a constant mass per point);
+/// no spin, strain, many-body or non-parabolic effects (``Heterostructure.solve`` treats
+/// non-parabolicity). A smooth potential sampled on a grid converges spectrally; a step in V
+/// or m sampled on a FourierGrid converges only like O(1/N): put steps on element
+/// breakpoints (ElementBasis) or pass a Heterostructure.
+///
+/// Examples
+/// --------
+/// Harmonic oscillator in natural units (levels n + 1/2):
+///
+/// >>> import numpy as np
+/// >>> import specwell as sw
+/// >>> H = sw.Hamiltonian(sw.FourierGrid(-10.0, 10.0, 128), lambda x: 0.5 * x**2)
+/// >>> np.round(H.solve(3).energies, 8)
+/// array([0.5, 1.5, 2.5])
 #[pyclass(name = "Hamiltonian", module = "specwell._core", frozen)]
 pub struct PyHamiltonian {
     pub inner: Arc<Hamiltonian>,
@@ -88,7 +140,17 @@ impl PyHamiltonian {
         Ok(PyHamiltonian { inner: Arc::new(h) })
     }
 
-    /// The dense N×N matrix.
+    /// The dense N×N matrix (real symmetric); for a generalized problem, A of A c = E B c.
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (N, N)
+    ///     Energy units; in the basis' coefficients (on a FourierGrid, ψ(x_j)·sqrt(dx)).
+    ///
+    /// Raises
+    /// ------
+    /// MemoryError
+    ///     If the matrix would not fit in available memory.
     fn matrix<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let h = self.inner.clone();
         check_memory("Hamiltonian.matrix", 2 * h.dense_bytes(), "the matrix does not fit; use apply() or solve(method=\"iterative\")").py(py)?;
@@ -96,8 +158,19 @@ impl PyHamiltonian {
         Ok(mat_to_py(py, m.as_ref()))
     }
 
-    /// The overlap matrix B of a heterostructure's generalized problem A c = E B c
-    /// (None for the other bases, where B = I).
+    /// The overlap matrix B of a generalized problem A c = E B c (None where B = I).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (N, N), or None
+    ///     B for a Heterostructure (on a FourierGrid or an ElementBasis) and for any
+    ///     ElementBasis problem (diagonal there: GLL quadrature); None for a HermiteBasis or a
+    ///     FourierGrid with a plain potential.
+    ///
+    /// Raises
+    /// ------
+    /// MemoryError
+    ///     If the matrix would not fit in available memory.
     fn overlap_matrix<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyArray2<f64>>>> {
         if !self.inner.is_generalized() {
             return Ok(None);
@@ -108,7 +181,24 @@ impl PyHamiltonian {
         Ok(m.map(|m| mat_to_py(py, m.as_ref())))
     }
 
-    /// H·psi (matrix-free). `psi`: real or complex, length N.
+    /// H·psi, matrix-free, for a real or complex vector of basis coefficients.
+    ///
+    /// Parameters
+    /// ----------
+    /// psi : array_like, shape (N,)
+    ///     Real or complex coefficients. On a FourierGrid they may equally be grid samples
+    ///     ψ(x_j) (the map is linear).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (N,)
+    ///     float64 for real ``psi``, complex128 for complex ``psi``; for a generalized problem
+    ///     the product with A (not B⁻¹A).
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     ``psi`` of the wrong length or not finite.
     fn apply<'py>(&self, py: Python<'py>, psi: &Bound<'py, PyAny>) -> PyResult<Py<PyAny>> {
         let (re, im) = vec_f64_or_complex(psi, "psi")?;
         let h = self.inner.clone();
@@ -123,7 +213,72 @@ impl PyHamiltonian {
         }
     }
 
-    /// The lowest `count` eigenpairs.
+    /// Lowest ``count`` eigenpairs (energies ascending) with their residuals.
+    ///
+    /// Parameters
+    /// ----------
+    /// count : int
+    ///     Number of states, 1 ≤ count ≤ N (N = ``size``).
+    /// method : {"auto", "dense", "iterative"}, default "auto"
+    ///     "dense": direct eigensolver on the assembled matrix (banded on an ElementBasis,
+    ///     parity blocks on a symmetric HermiteBasis problem); "iterative": matrix-free block
+    ///     solver (LOBPCG) for the lowest states; "auto": iterative when the
+    ///     problem has an FFT product (FourierGrid, or a Heterostructure on one), N > 512 and
+    ///     count ≤ N/4, dense otherwise. If an automatic iterative solve stalls and the dense
+    ///     matrices fit in memory it is finished densely (``Spectrum.note`` says so).
+    /// tol : float, default 1e-10
+    ///     Residual tolerance of the iterative path, ‖Hψ − Eψ‖ ≤ tol·max(1, |E|), in (0, 1).
+    ///     Not used by the dense path.
+    /// max_iter : int, optional
+    ///     Iteration limit of the iterative path, ≥ 1; default None means 1000.
+    /// initial : Spectrum or array_like (k, N), optional
+    ///     Warm start for the iterative path. Without it, a large grid starts from the
+    ///     same problem solved on a coarser grid of the same box (then interpolated).
+    /// seed : int, optional
+    ///     Seed of the iterative path's random vectors (the start block when there is neither
+    ///     ``initial`` nor a coarser grid to start from, and any columns ``initial`` lacks), in
+    ///     [0, 2**63); default None means a fixed seed, so results are reproducible.
+    ///
+    /// Returns
+    /// -------
+    /// Spectrum
+    ///     ``energies``, ``vectors``, ``residuals`` and the method actually used.
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     count outside [1, N], tol outside (0, 1), unknown method, ``initial`` of the wrong
+    ///     shape or not finite.
+    /// MemoryError
+    ///     The dense path's matrices (about three N×N float64 arrays, five for a
+    ///     generalized problem) would not fit in available memory.
+    /// ConvergenceError
+    ///     The iterative path missed ``tol`` within ``max_iter`` (and could not be finished
+    ///     densely).
+    ///
+    /// Warns
+    /// -----
+    /// AccuracyWarning
+    ///     Round-off allows some level less than 1e-8 relative accuracy
+    ///     (``Spectrum.attainable_accuracy``).
+    ///
+    /// Notes
+    /// -----
+    /// The residual r = ‖Hψ − Eψ‖ (‖ψ‖ = 1) bounds the eigenvalue error of the discretised
+    /// problem (some exact discrete eigenvalue lies within r of E, for a standard symmetric
+    /// problem); it says nothing about the discretisation error of the basis. Check that by
+    /// solving again with a larger basis.
+    ///
+    /// Examples
+    /// --------
+    /// >>> import numpy as np
+    /// >>> import specwell as sw
+    /// >>> H = sw.Hamiltonian(sw.HermiteBasis(40), lambda x: 0.5 * x**2)
+    /// >>> st = H.solve(4)
+    /// >>> np.round(st.energies, 10)
+    /// array([0.5, 1.5, 2.5, 3.5])
+    /// >>> bool(st.residuals.max() < 1e-10)
+    /// True
     #[pyo3(signature = (count, method="auto", tol=1e-10, max_iter=None, initial=None, seed=None))]
     fn solve(
         &self,
@@ -151,30 +306,32 @@ impl PyHamiltonian {
         Ok(PySpectrum { inner: Arc::new(s) })
     }
 
+    /// The basis.
     #[getter]
     fn basis(&self, py: Python<'_>) -> PyResult<Py<PyAny>> {
         basis_to_py(py, self.inner.basis())
     }
-    /// Potential samples on basis.x.
+    /// Potential samples on ``basis.x``.
     #[getter]
     fn potential<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.potential())
     }
+    /// Unit system name.
     #[getter]
     fn units(&self) -> &'static str {
         self.inner.units().name()
     }
-    /// The mass as given: a float, or an array on the grid points (for a
-    /// heterostructure, the layer masses at the basis nodes).
+    /// The mass as given (a float, or an array on the grid points; for a heterostructure the layer masses at the nodes).
     #[getter]
     fn mass(&self, py: Python<'_>) -> Py<PyAny> {
         mass_to_py(py, self.inner.mass())
     }
-    /// The Heterostructure the Hamiltonian was built from (None otherwise).
+    /// The Heterostructure of a layered Hamiltonian, else None.
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
         self.inner.stack().map(|s| Py::new(py, PyHeterostructure { inner: s.clone() })).transpose()
     }
+    /// Matrix dimension N.
     #[getter]
     fn size(&self) -> usize {
         self.inner.size()
@@ -309,7 +466,17 @@ fn initial_block(obj: &Bound<'_, PyAny>, n: usize) -> PyResult<Vec<f64>> {
     Ok(data)
 }
 
-/// Eigenpairs of a Hamiltonian.
+/// Lowest eigenpairs of a Hamiltonian (returned by ``Hamiltonian.solve``).
+///
+/// Not constructed directly. ``len(spectrum)`` is the number of states; results pickle and
+/// save (``save``) exactly.
+///
+/// Notes
+/// -----
+/// Wavefunctions are normalised, ∫|ψ|² dx = 1 (for a generalized problem cᵀBc = 1). Signs are
+/// deterministic: each state is positive in the leftmost region where |ψ| exceeds 1 % of its
+/// maximum. ``residuals`` measure how well the discrete eigenproblem is solved, not the
+/// error of the basis (``errors``, set by ``Heterostructure.solve``, estimates that).
 #[pyclass(name = "Spectrum", module = "specwell._core", frozen)]
 pub struct PySpectrum {
     pub inner: Arc<Spectrum>,
@@ -322,39 +489,38 @@ impl PySpectrum {
     fn energies<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.energies)
     }
-    /// Residual norms ‖Hψ − Eψ‖, shape (count,).
+    /// Residual norms ‖Hψ − Eψ‖ (‖ψ‖ = 1), shape (count,).
     #[getter]
     fn residuals<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.residuals)
     }
-    /// Coefficient vectors in the basis, shape (count, N), orthonormal rows.
+    /// Orthonormal coefficient vectors in the basis, shape (count, N) (B-orthonormal, cᵀBc = 1, for a generalized problem).
     #[getter]
     fn vectors<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
         mat_t_to_py(py, self.inner.vectors.as_ref())
     }
-    /// The basis' own sample points (grid points or quadrature nodes).
+    /// The basis' own points (grid points or quadrature nodes).
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, self.inner.basis().as_dyn().points())
     }
+    /// Number of states.
     #[getter]
     fn count(&self) -> usize {
         self.inner.count()
     }
-    /// The Heterostructure of the spectrum's Hamiltonian (None when it has none).
+    /// The Heterostructure of a layered spectrum, else None.
     #[getter]
     fn heterostructure(&self, py: Python<'_>) -> PyResult<Option<Py<PyHeterostructure>>> {
         self.inner.hamiltonian.stack().map(|s| Py::new(py, PyHeterostructure { inner: s.clone() })).transpose()
     }
-    /// Per-level error estimates (energy units) of a self-converged solve
-    /// (`Heterostructure.solve`): |E(p+2) − E(p)|; None for other solves.
+    /// Per-level error estimates |E(p+2) − E(p)| (energy units) of ``Heterostructure.solve``, else None.
     #[getter]
     fn errors<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         self.inner.errors.as_ref().map(|e| PyArray1::from_slice(py, e))
     }
-    /// Per level, for a layered structure: True when the level lies below both cladding
-    /// band edges (in a field, below the lower of the two), i.e. is bound; False for
-    /// continuum (box) states. None without a structure.
+    /// For a layered structure: True where the level lies below both cladding band edges
+    /// (in a field, below the lower of the two), False for continuum (box) states; else None.
     #[getter]
     fn bound<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<bool>>> {
         self.inner.bound.as_ref().map(|b| PyArray1::from_slice(py, b))
@@ -364,7 +530,34 @@ impl PySpectrum {
     fn hamiltonian(&self) -> PyHamiltonian {
         PyHamiltonian { inner: self.inner.hamiltonian.clone() }
     }
-    /// Broadened absorption from state `initial`: Σ_f f_if·L(E − (E_f − E_i)), shape (len(energies),).
+    /// Broadened absorption from state ``initial``: Σ_f f_if·L(E − (E_f − E_i)).
+    ///
+    /// Parameters
+    /// ----------
+    /// energies : array_like
+    ///     Photon energies (energy units, finite).
+    /// broadening : float
+    ///     Line width (> 0): half width at half maximum (Lorentzian) or standard deviation (Gaussian).
+    /// shape : {"lorentzian", "gaussian"}, default "lorentzian"
+    ///     Unit-area line shape.
+    /// initial : int, default 0
+    ///     Initial state index, in [0, count − 1].
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (len(energies),)
+    ///     Oscillator strength per unit energy; multiply by the material prefactor for an
+    ///     absorption coefficient.
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     Non-positive broadening, non-finite energies, unknown shape, ``initial`` out of range.
+    ///
+    /// Notes
+    /// -----
+    /// Only transitions between the ``count`` computed states enter: solve for enough states
+    /// to cover the photon energies.
     #[pyo3(signature = (energies, broadening, shape="lorentzian", initial=0))]
     fn absorption<'py>(
         &self,
@@ -379,8 +572,31 @@ impl PySpectrum {
         let a = observables::absorption(&self.inner, &e, broadening, shape, initial).py(py)?;
         Ok(PyArray1::from_vec(py, a))
     }
-    /// ⟨n|g(x)|n⟩ for every state: `g` a vectorised callable (or None for x), integrated by
-    /// the trapezoid rule on `points` uniform points spanning the basis' own points.
+    /// ⟨n|g(x)|n⟩ for every state (g=None: ⟨x⟩).
+    ///
+    /// Parameters
+    /// ----------
+    /// g : callable, optional
+    ///     Vectorised g(x) returning finite values, called once with the ``points`` sample
+    ///     points; default None means g(x) = x.
+    /// points : int, default 8192
+    ///     Number of uniform points (≥ 16) spanning the basis' own points ``x`` (from the
+    ///     smallest to the largest); the trapezoid rule on them.
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (count,)
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     ``points`` < 16, ``g`` returns the wrong number of values or non-finite ones.
+    ///
+    /// Notes
+    /// -----
+    /// The range is that of ``x``: a state with weight outside it (a HermiteBasis state beyond
+    /// the outermost nodes) is integrated only over the part inside. Second order in the
+    /// spacing; ``matrix_elements`` is more accurate for smooth g.
     #[pyo3(signature = (g=None, points=8192))]
     fn expectation<'py>(&self, py: Python<'py>, g: Option<&Bound<'py, PyAny>>, points: usize) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let (lo, hi) = observables::x_range(&self.inner);
@@ -401,43 +617,65 @@ impl PySpectrum {
         let out = py.detach(move || observables::expectation(&s, &xs, &gv)).py(py)?;
         Ok(PyArray1::from_vec(py, out))
     }
+    /// Method used ("dense" or "iterative").
     #[getter]
     fn method(&self) -> &'static str {
         self.inner.method.name()
     }
+    /// LOBPCG steps of the iterative path on the full basis (0 for dense).
     #[getter]
     fn iterations(&self) -> usize {
         self.inner.iterations
     }
-    /// (basis size, LOBPCG steps) of each coarse level of the iterative path's
-    /// multilevel start, coarsest first (0 steps: solved densely, or already converged
-    /// from the level below); empty for dense and warm-started solves.
+    /// (basis size, LOBPCG steps) of each coarse level of the iterative path's multilevel start.
+    ///
+    /// Coarsest first; 0 steps means solved densely or already converged from the level below.
+    /// Empty for dense and warm-started solves.
     #[getter]
     fn levels(&self) -> Vec<(usize, usize)> {
         self.inner.levels.clone()
     }
-    /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min, E_unit),
-    /// E_unit the lowest kinetic quantum of the domain; shape (count,). Above 1e-8 a
-    /// `specwell.AccuracyWarning` is issued by `solve`.
+    /// Relative accuracy round-off allows each level, ε‖H‖/max(|E_i|, E_max − E_min, E_unit), shape (count,), with E_unit the lowest kinetic quantum of the domain.
+    ///
+    /// Above 1e-8, ``solve`` issues a ``specwell.AccuracyWarning``.
     #[getter]
     fn attainable_accuracy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.attainable)
     }
-    /// How the result was produced when the automatic choice changed course (e.g. an
-    /// iteration that stalled and was finished densely), else None.
+    /// How the result was produced when the automatic choice changed course, else None.
     #[getter]
     fn note(&self) -> Option<String> {
         self.inner.note.clone()
     }
+    /// Unit system name.
     #[getter]
     fn units(&self) -> &'static str {
         self.inner.units().name()
     }
+    /// The basis (for a heterostructure: the grid it was built on).
     #[getter]
     fn basis(&self, py: Python<'_>) -> PyResult<Py<PyAny>> {
         basis_to_py(py, self.inner.basis())
     }
-    /// ψ_n(x) for every state, shape (count, len(x)); x=None: the basis' own points.
+    /// ψ_n(x) for every state, normalised ∫|ψ|² dx = 1.
+    ///
+    /// Parameters
+    /// ----------
+    /// x : array_like, optional
+    ///     Points (length units, finite); default None: the basis' own points ``x``. Evaluated
+    ///     with the basis functions themselves: the trigonometric series on a FourierGrid
+    ///     (points must lie in [start, stop]), Hermite functions anywhere, element
+    ///     polynomials on an ElementBasis (0 outside the elements).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (count, len(x))
+    ///     Real values (1/sqrt(length) units).
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     ``x`` not finite, or outside the box of a FourierGrid.
     #[pyo3(signature = (x=None))]
     fn wavefunctions<'py>(&self, py: Python<'py>, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let xs = match x {
@@ -452,23 +690,69 @@ impl PySpectrum {
         let w = py.detach(move || s.wavefunctions(&xs)).py(py)?;
         Ok(mat_t_to_py(py, w.as_ref()))
     }
-    /// ⟨i|x|j⟩, shape (count, count), length units.
+    /// Position matrix ⟨i|x|j⟩, shape (count, count), length units.
+    ///
+    /// On a FourierGrid x is the grid coordinate (not periodic): meaningful for states that
+    /// vanish at the box edges.
     fn dipole_matrix<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let d = observables::dipole_matrix(&self.inner).py(py)?;
         Ok(mat_to_py(py, d.as_ref()))
     }
-    /// f_ij = (2m/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
+    /// f_ij = (2m_i/ħ²)(E_j − E_i)|⟨i|x|j⟩|², shape (count, count).
+    ///
+    /// m_i is the mass, or ⟨i|m(x)|i⟩ for a position-dependent mass (then the
+    /// Thomas-Reiche-Kuhn sum rule holds only approximately).
     fn oscillator_strengths<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let f = observables::oscillator_strengths(&self.inner).py(py)?;
         Ok(mat_to_py(py, f.as_ref()))
     }
-    /// ⟨ψ_i|φ_j⟩ with the states φ_j of `other` (same basis), shape (count, len(other)):
-    /// Franck-Condon factors are its squares.
+    /// Overlaps ⟨ψ_i|φ_j⟩ with the states of ``other``, shape (len(self), len(other)).
+    ///
+    /// The squares are Franck-Condon factors when the two spectra are the vibrational
+    /// levels of two electronic states. On the same basis (same kind, size and points)
+    /// the overlap is exact (coefficients and the discretisation's overlap matrix B);
+    /// on different bases (e.g. two Hermite bases centred on each potential's minimum)
+    /// it is a composite Gauss-Lobatto-Legendre quadrature of ψ_i(x)φ_j(x) over the x
+    /// range both bases cover: round-off accurate for smooth states, about 1e-7 where a
+    /// state has a kink (layer interfaces) inside a quadrature panel.
+    ///
+    /// Parameters
+    /// ----------
+    /// other : Spectrum
+    ///     The second set of states (same length unit; any basis).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (len(self), len(other))
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     The two bases share no x range.
+    ///
+    /// Notes
+    /// -----
+    /// On different bases only the common x range is integrated: weight of either state
+    /// outside it is missing from the overlap.
     fn overlaps<'py>(&self, py: Python<'py>, other: PyRef<'py, PySpectrum>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let s = observables::overlaps(&self.inner, &other.inner).py(py)?;
         Ok(mat_to_py(py, s.as_ref()))
     }
-    /// ⟨i|g(x)|j⟩, shape (count, count), for a vectorised callable g(x).
+    /// Matrix elements ⟨ψ_i|g(x)|ψ_j⟩, shape (count, count).
+    ///
+    /// Parameters
+    /// ----------
+    /// g : callable
+    ///     Vectorised g(x) (x in the basis's length unit), called once with the
+    ///     quadrature nodes (composite Gauss-Lobatto-Legendre over the basis's x range);
+    ///     round-off accurate for smooth states and g, about 1e-7 where ψ or g has a kink.
+    ///
+    /// Raises
+    /// ------
+    /// TypeError
+    ///     ``g`` is not callable.
+    /// ValueError
+    ///     ``g`` returns the wrong number of values or non-finite ones.
     fn matrix_elements<'py>(&self, py: Python<'py>, g: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         if !g.is_callable() {
             return Err(pyo3::exceptions::PyTypeError::new_err("`g` must be a vectorised callable g(x) returning one value per point"));
@@ -538,8 +822,33 @@ impl PySpectrum {
     }
 }
 
-/// All eigenpairs of a real symmetric matrix (lower triangle read) through the
-/// core's dense solver: (values ascending, vectors as columns).
+/// All eigenpairs of a real symmetric matrix (lower triangle read) with the core's dense solver.
+///
+/// Parameters
+/// ----------
+/// a : array_like, shape (n, n)
+///     Real square matrix, finite, |a_ij| ≤ 1e100; only the lower triangle is read (the
+///     upper one is assumed to mirror it).
+///
+/// Returns
+/// -------
+/// values : ndarray, shape (n,)
+///     Eigenvalues, ascending.
+/// vectors : ndarray, shape (n, n)
+///     Orthonormal eigenvectors as columns.
+///
+/// Raises
+/// ------
+/// ValueError
+///     ``a`` not square, empty, not finite or with entries beyond 1e100.
+///
+/// Examples
+/// --------
+/// >>> import numpy as np
+/// >>> import specwell as sw
+/// >>> w, v = sw.eigh(np.array([[2.0, 1.0], [1.0, 2.0]]))
+/// >>> np.round(w, 12)
+/// array([1., 3.])
 #[pyfunction]
 pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray2<f64>>)> {
     let (r, c, data) = super::arrays::mat_f64(a, "a")?;
@@ -563,7 +872,7 @@ pub fn eigh<'py>(py: Python<'py>, a: &Bound<'py, PyAny>) -> PyResult<(Bound<'py,
     Ok((PyArray1::from_vec(py, vals), mat_to_py(py, vecs.as_ref())))
 }
 
-/// Spectra of many potentials on one basis (see `solve_batch`).
+/// Spectra of many potentials on one basis (returned by ``solve_batch``).
 #[pyclass(name = "Batch", module = "specwell._core", frozen)]
 pub struct PyBatch {
     items: Vec<Arc<Spectrum>>,
@@ -597,7 +906,23 @@ impl PyBatch {
     fn __len__(&self) -> usize {
         self.items.len()
     }
-    /// ψ_n(x) of item `index`, shape (count, len(x)).
+    /// ψ_n(x) of item ``index``, shape (count, len(x)) (see ``Spectrum.wavefunctions``).
+    ///
+    /// Parameters
+    /// ----------
+    /// index : int
+    ///     Item index (negative counts from the end).
+    /// x : array_like, optional
+    ///     Points (length units); default None: the basis' own points.
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (count, len(x))
+    ///
+    /// Raises
+    /// ------
+    /// IndexError
+    ///     ``index`` out of range.
     #[pyo3(signature = (index, x=None))]
     fn wavefunctions<'py>(&self, py: Python<'py>, index: &Bound<'py, PyAny>, x: Option<&Bound<'py, PyAny>>) -> PyResult<Bound<'py, PyArray2<f64>>> {
         self.__getitem__(index)?.wavefunctions(py, x)
@@ -629,7 +954,42 @@ pub fn _batch_from_spectra(spectra: Vec<PyRef<'_, PySpectrum>>) -> PyBatch {
     PyBatch { items: spectra.iter().map(|s| s.inner.clone()).collect() }
 }
 
-/// Solve many potentials on one basis in parallel (rayon, GIL released).
+/// Lowest ``count`` states of many potentials on one basis, or of many heterostructures,
+/// in parallel (rayon, GIL released).
+///
+/// Parameters
+/// ----------
+/// basis : HermiteBasis, FourierGrid, ElementBasis or None
+///     Shared basis; None for a sweep of Heterostructures, each solved as by
+///     ``Heterostructure.solve(count, accuracy)`` on its own element mesh (each thread
+///     starts an item from the previous item's mesh).
+/// potentials : array_like (M, N), sequence of callables/arrays, or sequence of Heterostructure
+///     Potentials sampled on ``basis.x`` (or callables evaluated there); Heterostructures
+///     when ``basis`` is None.
+/// count : int
+///     States per item.
+/// mass, units, method, tol
+///     As for ``Hamiltonian`` and ``Hamiltonian.solve``. With ``method="iterative"`` (the
+///     automatic choice above 56 functions with a fast product) each thread walks a
+///     contiguous chunk of the sweep and warm-starts every item from the linear
+///     extrapolation of the two previous items' eigenvectors.
+/// accuracy : float
+///     Relative accuracy of every level of a sweep of Heterostructures.
+///
+/// Returns
+/// -------
+/// Batch
+///     ``energies`` and ``residuals`` of shape (M, count); item i is a Spectrum.
+///
+/// Raises
+/// ------
+/// ValueError
+///     As for ``Hamiltonian`` and ``Hamiltonian.solve`` (the message names
+///     ``potentials[i]``), potentials of the wrong shape, ``mass`` with Heterostructures.
+/// TypeError
+///     Heterostructures with a basis, or other items without one.
+/// ConvergenceError
+///     An iterative item missed ``tol``.
 #[pyfunction]
 #[pyo3(signature = (basis, potentials, count, mass=None, units="natural", method="auto", tol=1e-10, accuracy=1e-10))]
 pub fn solve_batch(

@@ -4,7 +4,13 @@ use super::errors::IntoPyResult;
 use crate::model::materials::{self, Material, Nonparabolicity};
 use pyo3::prelude::*;
 
-/// Parameters of a III-V material at a composition and temperature (see `_core.pyi`).
+/// Parameters of a III-V material at a composition and temperature (``specwell.material``).
+///
+/// Band parameters from Vurgaftman, Meyer & Ram-Mohan, J. Appl. Phys. 89, 5815 (2001),
+/// alloys with that compilation's bowing parameters; permittivities from a handbook.
+/// Every value in the table was recalled from memory (see ``source``): verify the
+/// parameters you rely on against the publications before using them for real work.
+/// Energies in meV, masses in m_e.
 #[pyclass(name = "Material", module = "specwell._core", frozen)]
 #[derive(Clone)]
 pub struct PyMaterial {
@@ -13,14 +19,17 @@ pub struct PyMaterial {
 
 #[pymethods]
 impl PyMaterial {
+    /// Material name as given to ``specwell.material`` (one of ``specwell.MATERIALS``).
     #[getter]
     fn name(&self) -> &'static str {
         self.inner.name
     }
+    /// Composition of a ternary (AlGaAs: Al fraction; InGaAs, InAlAs: In fraction; GaAsSb, InAsSb, AlAsSb: Sb fraction).
     #[getter]
     fn x(&self) -> Option<f64> {
         self.inner.x
     }
+    /// Temperature (K) the gap was evaluated at (Varshni form).
     #[getter]
     fn temperature(&self) -> f64 {
         self.inner.temperature_k
@@ -30,12 +39,12 @@ impl PyMaterial {
     fn band_gap(&self) -> f64 {
         self.inner.band_gap
     }
-    /// Valence-band maximum on the compilation's common scale (meV).
+    /// Valence-band maximum on the compilation's common scale (meV; InSb = 0).
     #[getter]
     fn valence_band(&self) -> f64 {
         self.inner.valence_band
     }
-    /// Γ conduction-band edge = valence_band + band_gap (meV).
+    /// Γ conduction-band edge, valence_band + band_gap (meV).
     #[getter]
     fn conduction_band(&self) -> f64 {
         self.inner.conduction_band
@@ -65,13 +74,27 @@ impl PyMaterial {
     fn lattice_constant(&self) -> f64 {
         self.inner.lattice_constant
     }
-    /// Where the numbers come from (and whether they were recalled from memory).
+    /// Where the row's numbers come from.
     #[getter]
     fn source(&self) -> &'static str {
         self.inner.source
     }
-    /// Conduction-band non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)):
-    /// `model` "three_band" (default, with Δ_so) or "two_band" (α ≈ 1/E_g).
+    /// Conduction-band non-parabolicity α (1/eV) of m(E) = m(1 + α(E − E_c)).
+    ///
+    /// Parameters
+    /// ----------
+    /// model : {"three_band", "two_band"}, default "three_band"
+    ///     Kane model: "three_band" includes the spin-orbit splitting Δ_so; "two_band" gives
+    ///     α ≈ 1/E_g.
+    ///
+    /// Returns
+    /// -------
+    /// float
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     Unknown model.
     #[pyo3(signature = (model="three_band"))]
     fn nonparabolicity(&self, py: Python<'_>, model: &str) -> PyResult<f64> {
         let m = crate::error::parse_choice("model", model, &Nonparabolicity::TABLE).py(py)?;
@@ -90,7 +113,32 @@ impl PyMaterial {
     }
 }
 
-/// The parameters of `name` at composition `x` and `temperature` (K); see `_core.pyi`.
+/// Parameters of a III-V material at a composition and temperature.
+///
+/// Parameters
+/// ----------
+/// name : str
+///     One of ``specwell.MATERIALS`` (e.g. "GaAs", "AlGaAs").
+/// x : float, optional
+///     Composition of a ternary, 0 ≤ x ≤ 1 (see ``Material.x`` for which element); None
+///     for a binary (required for a ternary).
+/// temperature : float, default 300.0
+///     K, in [0, 800]; the band gap follows the Varshni form.
+///
+/// Returns
+/// -------
+/// Material
+///
+/// Notes
+/// -----
+/// The table's values were recalled from memory of the published compilation (see
+/// ``Material.source``): verify the parameters you rely on before using them for real work.
+///
+/// Raises
+/// ------
+/// ValueError
+///     Unknown name (the message lists the choices), x missing or outside [0, 1], x for a
+///     binary, temperature out of range.
 #[pyfunction]
 #[pyo3(signature = (name, x=None, temperature=300.0))]
 pub fn material(py: Python<'_>, name: &str, x: Option<f64>, temperature: f64) -> PyResult<PyMaterial> {

@@ -60,7 +60,28 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     Ok(())
 }
 
-/// (ħ²/2m₁, ħ) of a unit system (m₁ its mass unit: m_e, or u for "cold-atom"): energy·length² and energy·time.
+/// (ħ²/2m₁, ħ) of a unit system, in energy·length² and energy·time.
+///
+/// m₁ is the system's mass unit: m_e, or u for "cold-atom" and "molecular".
+///
+/// Parameters
+/// ----------
+/// units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}
+///
+/// Returns
+/// -------
+/// (float, float)
+///
+/// Raises
+/// ------
+/// ValueError
+///     Unknown units.
+///
+/// Examples
+/// --------
+/// >>> import specwell as sw
+/// >>> sw.unit_constants("natural")
+/// (0.5, 1.0)
 #[pyfunction]
 fn unit_constants(units: &str) -> PyResult<(f64, f64)> {
     let u = crate::model::units::Units::parse(units).map_err(|e| pyo3::exceptions::PyValueError::new_err(e.to_string()))?;

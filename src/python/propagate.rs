@@ -105,7 +105,82 @@ fn grid_samples(obj: &Bound<'_, PyAny>, grid: &GridArg, name: &str) -> PyResult<
     Ok(data)
 }
 
-/// Split-step Fourier propagator on a FourierGrid or ProductGrid (see `_core.pyi`).
+/// Split-step Fourier propagator (Feit, Fleck & Steiger 1982) on a FourierGrid or ProductGrid.
+///
+/// Parameters
+/// ----------
+/// grid : FourierGrid or ProductGrid
+///     Periodic grid (1D, or 2D/3D).
+/// potential : callable or array_like
+///     Static potential V0 (energy units): on a FourierGrid f(x) or samples on ``grid.x``; on a
+///     ProductGrid f(x, y[, z]), called once with broadcastable coordinate arrays
+///     (``grid.mesh(sparse=True)``) and returning the grid's shape (or a shape that broadcasts
+///     to it, or a number), or an array of exactly ``grid.shape``.
+/// mass : float, default 1.0
+///     Particle mass (> 0, mass unit of ``units``); a single number (a position-dependent
+///     mass does not split into kinetic and potential steps).
+/// dt : float
+///     Time step (time units; finite, nonzero; > 0 in imaginary time and with
+///     ``absorber_potential``). Required: the default None raises TypeError.
+/// order : {2, 4}, optional
+///     2 (default None means 2): Strang splitting; 4: Yoshida (1990) composition of three
+///     Strang steps (not in imaginary time).
+/// units : {"natural", "atomic", "semiconductor", "cold-atom", "molecular"}, default "natural"
+///     Unit system ("cold-atom": µm, ms, u, energies in ħ/ms so that ħ = 1).
+/// drive : callable or array_like, optional
+///     f(t) of V(x,t) = V0(x) + f(t)·V1(x); needs ``drive_potential``. A callable is called
+///     once per run with the array of sub-step sample times (it must be vectorised: f(t_array)
+///     → array; see ``drive_sample_times``), keeping full order; an array gives f at the step
+///     midpoints t_n + dt/2, one per step (second order in the drive for order=4). Both run at
+///     the same speed: the samples are taken before the GIL is released.
+/// drive_potential : callable or array_like, optional
+///     V1 (energy per unit of f), like ``potential``; e.g. ``lambda x: x`` for a uniform
+///     field. Needs ``drive``.
+/// absorber_width : float, optional
+///     Width of a smooth cos^(1/8) mask at every face of the box (absorption per step); in
+///     (0, half the shortest side]. Not with ``absorber_potential``.
+/// absorber_potential : callable or array_like, optional
+///     Complex absorbing potential W ≥ 0: V → V − iW (like ``potential``).
+/// imaginary_time : bool, default False
+///     Propagate in imaginary time (use ``ground_states`` or ``ground_state``); not with a
+///     drive or an absorber.
+/// nonlinearity : float, default 0.0
+///     g of the Gross-Pitaevskii term: iħ∂ψ/∂t = [T + V + g|ψ|²]ψ with ψ normalised to
+///     Σ|ψ|²dV = 1, so g includes the atom number (energy·length^d). Default 0 (linear).
+///     The potential sub-steps take the exact phase exp(−i(V + g|ψ|²)w·dt/ħ), keeping order 2
+///     (Strang) and 4 (Yoshida) for the nonlinear flow (Bao, Jaksch & Markowich 2003).
+///     Coupling constants from the scattering length: see ``coupling_constant`` (3D
+///     g = 4πħ²aN/m; quasi-2D g₂ = g₃/(√(2π) a_z); quasi-1D g₁ = g₃/(2π a_⊥²)).
+///     With g ≠ 0, ``Run.energy`` is the energy functional ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV.
+///
+/// Raises
+/// ------
+/// ValueError
+///     An argument outside its range, a potential of the wrong shape, g not finite, an
+///     option combination listed above.
+/// TypeError
+///     Wrong grid type, non-numeric input, ``dt`` missing, an array ``mass``.
+/// MemoryError
+///     The phase tables would not fit in memory.
+///
+/// Notes
+/// -----
+/// Periodic boundaries: a packet leaving one face re-enters at the other unless absorbed.
+/// The splitting error is O(dt²) (order 2) or O(dt⁴) (order 4) per unit time; the grid must
+/// resolve the largest momentum reached (|k| < π/dx). ``Run.norm`` and ``Run.energy`` are
+/// diagnostics, not accuracy guarantees: check convergence by halving ``dt``.
+///
+/// Examples
+/// --------
+/// A displaced Gaussian in a harmonic trap returns after one period 2π:
+///
+/// >>> import numpy as np
+/// >>> import specwell as sw
+/// >>> g = sw.FourierGrid(-10.0, 10.0, 128)
+/// >>> prop = sw.SplitStep(g, 0.5 * g.x**2, dt=2 * np.pi / 1000, order=4)
+/// >>> run = prop.run(sw.gaussian_packet(g, 1.0, sigma=np.sqrt(0.5)), 1000, record_every=500)
+/// >>> np.round(run.mean_x, 6)
+/// array([ 1., -1.,  1.])
 #[pyclass(name = "SplitStep", module = "specwell._core", frozen)]
 pub struct PySplitStep {
     core: Arc<SplitStep>,
@@ -173,7 +248,35 @@ impl PySplitStep {
         Ok(PySplitStep { core: Arc::new(core), grid: g.obj, drive: drive.map(|d| d.clone().unbind()) })
     }
 
-    /// Propagate `psi0` for `steps` steps; records every `record_every` steps (and the last).
+    /// Propagate ``psi0`` (samples on the grid) for ``steps`` steps.
+    ///
+    /// Parameters
+    /// ----------
+    /// psi0 : array_like, shape (N,) on a FourierGrid, ``grid.shape`` on a ProductGrid
+    ///     Initial state; normalise it (Σ|ψ|²dV = 1) for normalised observables, and always
+    ///     with a nonlinearity (g multiplies |ψ|²).
+    /// steps : int
+    ///     Number of time steps (≥ 0).
+    /// record_every : int, optional
+    ///     Record every this many steps (≥ 1; default None means 1); the final state is
+    ///     always recorded.
+    /// progress : bool, default False
+    ///     Show a tqdm progress bar (extra ``progress``). Ctrl-C interrupts the run
+    ///     (KeyboardInterrupt) with or without it.
+    ///
+    /// Returns
+    /// -------
+    /// Run
+    ///
+    /// Raises
+    /// ------
+    /// MemoryError
+    ///     If the recorded snapshots would not fit in memory (raise ``record_every``); refused
+    ///     before any step is taken.
+    /// ValueError
+    ///     ``psi0`` of the wrong shape or not finite, ``steps`` or ``record_every`` out of range.
+    /// KeyboardInterrupt
+    ///     The run was interrupted (Ctrl-C).
     #[pyo3(signature = (psi0, steps, record_every=None, progress=false))]
     fn run(
         &self,
@@ -225,7 +328,26 @@ impl PySplitStep {
         Ok(PyRun::new(run, self.grid.clone_ref(py), self.core.options().units))
     }
 
-    /// Propagate many initial states (shape (M, *grid.shape)) in parallel.
+    /// Propagate several initial states in parallel across cores (GIL released).
+    ///
+    /// Parameters
+    /// ----------
+    /// psi0s : array_like, shape (M, N) or (M, *grid.shape)
+    ///     M ≥ 1 initial states (as for ``run``).
+    /// steps : int
+    ///     Number of time steps (≥ 0), the same for every state.
+    /// record_every : int, optional
+    ///     Record every this many steps (≥ 1; default None means 1).
+    ///
+    /// Returns
+    /// -------
+    /// list of Run
+    ///     One per initial state, in order.
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     ``psi0s`` of the wrong shape, ``steps`` or ``record_every`` out of range.
     #[pyo3(signature = (psi0s, steps, record_every=None))]
     fn run_many(
         &self,
@@ -249,9 +371,43 @@ impl PySplitStep {
         Ok(runs.into_iter().map(|r| PyRun::new(r, self.grid.clone_ref(py), self.core.options().units)).collect())
     }
 
-    /// Lowest `count` states by imaginary-time propagation (requires imaginary_time=True).
-    /// Returns (energies, states (count, *grid.shape)); with a nonlinearity only count=1,
-    /// and the energy is the chemical potential.
+    /// Lowest ``count`` states by imaginary-time propagation with Gram-Schmidt (imaginary_time=True).
+    ///
+    /// With a nonlinearity only ``count=1`` is accepted (ValueError otherwise): the normalised
+    /// gradient flow, refined to the minimum of the energy functional on the grid, and the
+    /// returned energy is the chemical potential μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (see ``ground_state``
+    /// for the energy functional too).
+    ///
+    /// Parameters
+    /// ----------
+    /// count : int
+    ///     Number of states, 1 ≤ count ≤ number of grid points.
+    /// tol : float, default 1e-9
+    ///     Stop when max_i |ΔE_i|/Δτ < ``tol`` (> 0; energy per time unit), checked every 10
+    ///     steps; the states are then refined by a Rayleigh-Ritz step in their span.
+    /// max_steps : int, optional
+    ///     Imaginary-time step limit (≥ 1); default None means 200000.
+    /// seed : int, optional
+    ///     Seed of the random start states, in [0, 2**63); default None means a fixed seed.
+    ///
+    /// Returns
+    /// -------
+    /// energies : ndarray, shape (count,)
+    /// states : ndarray of complex128, shape (count, N) or (count, *grid.shape), Σ|ψ|²dV = 1
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     The propagator is not in imaginary time; count, tol or max_steps out of range.
+    /// ConvergenceError
+    ///     ``tol`` not reached within ``max_steps`` (its ``rates`` hold the last |dE/dτ|).
+    ///
+    /// Notes
+    /// -----
+    /// Linear case: the fixed point is an eigenstate of the split operator, O(dτ²) away from
+    /// the grid eigenstate; the energies (Rayleigh quotients of the grid H) are O(dτ⁴)
+    /// accurate. ``Hamiltonian.solve`` on the same grid has no dτ error. With g ≠ 0 the
+    /// state is refined to the grid minimum of the energy functional (independent of dτ).
     #[pyo3(signature = (count, tol=1e-9, max_steps=None, seed=None))]
     fn ground_states<'py>(
         &self,
@@ -268,33 +424,74 @@ impl PySplitStep {
         Ok((PyArray1::from_vec(py, gs.energies), states))
     }
 
-    /// The ground state by imaginary time with its chemical potential and energy functional.
+    /// The ground state by imaginary time (imaginary_time=True), with μ, E and its residual.
+    ///
+    /// Parameters
+    /// ----------
+    /// tol : float, default 1e-9
+    ///     Stop the imaginary-time flow when |Δμ|/Δτ < ``tol`` (> 0; energy per time unit);
+    ///     with g ≠ 0 the state is then refined by conjugate gradients to the grid minimum of
+    ///     the energy functional.
+    /// max_steps : int, optional
+    ///     Imaginary-time step limit (≥ 1); default None means 200000.
+    /// seed : int, optional
+    ///     Seed of the random start state, in [0, 2**63); default None means a fixed seed.
+    ///
+    /// Returns
+    /// -------
+    /// GroundState
+    ///
+    /// Raises
+    /// ------
+    /// ValueError
+    ///     The propagator is not in imaginary time; tol or max_steps out of range.
+    /// ConvergenceError
+    ///     ``tol`` not reached within ``max_steps``.
     #[pyo3(signature = (tol=1e-9, max_steps=None, seed=None))]
     fn ground_state(&self, py: Python<'_>, tol: f64, max_steps: Option<&Bound<'_, PyAny>>, seed: Option<&Bound<'_, PyAny>>) -> PyResult<PyGroundState> {
         let gs = self.solve_ground(py, None, tol, max_steps, seed)?;
         Ok(PyGroundState { inner: gs, shape: self.core.shape().to_vec(), units: self.core.options().units, nonlinearity: self.core.nonlinearity() })
     }
 
-    /// Times (relative to t0 = 0) at which a callable drive f(t) is evaluated for a run of `steps`.
+    /// Times at which a callable drive is evaluated for a run of ``steps`` steps.
+    ///
+    /// Parameters
+    /// ----------
+    /// steps : int
+    ///     Number of steps of the run (≥ 0).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray
+    ///     Sample times relative to the start of the run (t0 = 0), in the order the drive
+    ///     callable receives them.
+    ///
+    /// Raises
+    /// ------
+    /// MemoryError
+    ///     The samples for this many steps would not fit in memory.
     fn drive_sample_times<'py>(&self, py: Python<'py>, steps: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let steps = to_usize(steps, "steps", 0, usize::MAX >> 8)?;
         self.check_drive_memory(py, steps)?;
         Ok(PyArray1::from_vec(py, self.core.drive_sample_times(steps, DriveSampling::Substeps)))
     }
 
+    /// Time step.
     #[getter]
     fn dt(&self) -> f64 {
         self.core.dt()
     }
+    /// Splitting order (2 or 4).
     #[getter]
     fn order(&self) -> usize {
         self.core.order().number()
     }
+    /// Unit system name.
     #[getter]
     fn units(&self) -> &'static str {
         self.core.options().units.name()
     }
-    /// Particle mass (mass unit of `units`).
+    /// Particle mass (mass unit of ``units``).
     #[getter]
     fn mass(&self) -> f64 {
         self.core.options().mass
@@ -304,10 +501,12 @@ impl PySplitStep {
     fn nonlinearity(&self) -> f64 {
         self.core.nonlinearity()
     }
+    /// The grid.
     #[getter]
     fn grid(&self, py: Python<'_>) -> Py<PyAny> {
         self.grid.clone_ref(py)
     }
+    /// Static potential on the grid (the grid's shape).
     #[getter]
     fn potential<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<f64>>> {
         shaped_array(py, self.core.shape(), self.core.potential().to_vec())
@@ -451,7 +650,7 @@ pub fn _split_step_from_parts(
     )
 }
 
-/// The ground state of `SplitStep.ground_state` (see `_core.pyi`).
+/// A ground state from ``SplitStep.ground_state``.
 #[pyclass(name = "GroundState", module = "specwell._core", frozen)]
 pub struct PyGroundState {
     inner: GroundStates,
@@ -462,22 +661,22 @@ pub struct PyGroundState {
 
 #[pymethods]
 impl PyGroundState {
-    /// μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (the eigenvalue when g = 0).
+    /// μ = ⟨T⟩ + ⟨V⟩ + gΣ|ψ|⁴dV (the lowest eigenvalue when g = 0).
     #[getter]
     fn chemical_potential(&self) -> f64 {
         self.inner.energies[0]
     }
-    /// E = ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV.
+    /// Energy functional E = ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV (per particle: ψ is normalised to 1).
     #[getter]
     fn energy(&self) -> f64 {
         self.inner.energy_functional[0]
     }
-    /// The state on the grid's shape (real, Σ|ψ|²dV = 1).
+    /// The state (real values, complex128), the grid's shape, Σ|ψ|²dV = 1, positive where it is largest.
     #[getter]
     fn state<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<Complex64>>> {
         shaped_array(py, &self.shape, self.inner.states.clone())
     }
-    /// ‖H[ψ]ψ − μψ‖ (discrete norm).
+    /// ‖H[ψ]ψ − μψ‖ in the discrete norm (Σ|·|²dV)^{1/2}.
     #[getter]
     fn residual(&self) -> f64 {
         self.inner.residuals[0]
@@ -492,15 +691,17 @@ impl PyGroundState {
     fn rate(&self) -> f64 {
         self.inner.rates[0]
     }
-    /// Conjugate-gradient iterations of the refinement (0 when g = 0).
+    /// Conjugate-gradient iterations of the refinement to the grid solution (0 when g = 0).
     #[getter]
     fn refine_iterations(&self) -> usize {
         self.inner.refine_iterations
     }
+    /// g of the propagator.
     #[getter]
     fn nonlinearity(&self) -> f64 {
         self.nonlinearity
     }
+    /// Unit system name.
     #[getter]
     fn units(&self) -> &'static str {
         self.units.name()
@@ -601,7 +802,7 @@ impl ProgressBar {
     }
 }
 
-/// Result of a propagation (see `_core.pyi`).
+/// Result of ``SplitStep.run``: records at ``times`` (record 0 = initial state).
 #[pyclass(name = "Run", module = "specwell._core", frozen)]
 pub struct PyRun {
     pub inner: Arc<Run>,
@@ -632,11 +833,12 @@ fn axis_points<'py>(py: Python<'py>, grid: &Py<PyAny>, a: usize) -> Option<Bound
 
 #[pymethods]
 impl PyRun {
+    /// Record times.
     #[getter]
     fn times<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.times)
     }
-    /// Recorded states, shape (records, *grid.shape), complex128 samples ψ(r_j).
+    /// Recorded states, shape (records, N) on a FourierGrid, (records, *grid.shape) on a ProductGrid.
     #[getter]
     fn states<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArrayDyn<Complex64>>> {
         let r = &self.inner;
@@ -644,56 +846,67 @@ impl PyRun {
         shape.extend_from_slice(&r.shape);
         shaped_array(py, &shape, r.states.clone())
     }
+    /// Σ|ψ|²dV per record.
     #[getter]
     fn norm<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.norm)
     }
+    /// ⟨x⟩ per record (normalised by the norm).
     #[getter]
     fn mean_x<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.mean_x)
     }
+    /// ⟨y⟩ per record (None on a 1D grid).
     #[getter]
     fn mean_y<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         optional(py, &self.inner.mean_y)
     }
+    /// ⟨z⟩ per record (None on a 1D or 2D grid).
     #[getter]
     fn mean_z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         optional(py, &self.inner.mean_z)
     }
+    /// ⟨p_x⟩ = ħ⟨k_x⟩ per record.
     #[getter]
     fn mean_p<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.mean_p)
     }
+    /// ⟨p_y⟩ per record (None on a 1D grid).
     #[getter]
     fn mean_py<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         optional(py, &self.inner.mean_py)
     }
+    /// ⟨p_z⟩ per record (None on a 1D or 2D grid).
     #[getter]
     fn mean_pz<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         optional(py, &self.inner.mean_pz)
     }
+    /// ⟨T⟩ + ⟨V(t)⟩ per record; with a nonlinearity the energy functional ⟨T⟩ + ⟨V⟩ + (g/2)Σ|ψ|⁴dV (all divided by the norm).
     #[getter]
     fn energy<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.energy)
     }
-    /// ⟨ψ(0)|ψ(t)⟩ per record.
+    /// ⟨ψ(0)|ψ(t)⟩ = Σ conj(ψ0)ψ dV per record.
     #[getter]
     fn autocorrelation<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<Complex64>> {
         PyArray1::from_slice(py, &self.inner.autocorrelation)
     }
-    /// Fraction of the initial norm absorbed (None without an absorber).
+    /// Fraction of the norm absorbed (None without an absorber).
     #[getter]
     fn absorbed_norm(&self) -> Option<f64> {
         self.inner.absorbed_norm
     }
+    /// Steps taken.
     #[getter]
     fn steps_done(&self) -> usize {
         self.inner.steps_done
     }
+    /// Step index of each record.
     #[getter]
     fn record_steps(&self) -> Vec<usize> {
         self.inner.record_steps.clone()
     }
+    /// The grid.
     #[getter]
     fn grid(&self, py: Python<'_>) -> Py<PyAny> {
         self.grid.clone_ref(py)
@@ -703,18 +916,22 @@ impl PyRun {
     fn shape(&self) -> Vec<usize> {
         self.inner.shape.clone()
     }
+    /// Points of the x axis.
     #[getter]
     fn x<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<f64>>> {
         axis_points(py, &self.grid, 0).ok_or_else(|| PyValueError::new_err("run grid has no x axis"))
     }
+    /// Points of the y axis (None on a 1D grid).
     #[getter]
     fn y<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         axis_points(py, &self.grid, 1)
     }
+    /// Points of the z axis (None on a 1D or 2D grid).
     #[getter]
     fn z<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {
         axis_points(py, &self.grid, 2)
     }
+    /// Unit system name.
     #[getter]
     fn units(&self) -> &'static str {
         self.units.name()

@@ -10,7 +10,7 @@ use numpy::PyArray1;
 use pyo3::prelude::*;
 use std::sync::Arc;
 
-/// A converged Schrödinger-Poisson solution (see `_core.pyi`).
+/// A converged Schrödinger-Poisson solution (``Heterostructure.self_consistent``).
 #[pyclass(name = "SelfConsistent", module = "specwell._core", frozen)]
 pub struct PySelfConsistent {
     pub inner: Arc<Solution>,
@@ -23,7 +23,7 @@ impl PySelfConsistent {
     fn fermi_level(&self) -> f64 {
         self.inner.fermi_level
     }
-    /// The levels of the converged potential.
+    /// The bound levels of the converged potential, on the element mesh.
     #[getter]
     fn spectrum(&self) -> PySpectrum {
         PySpectrum { inner: Arc::new(self.inner.spectrum.clone()) }
@@ -33,6 +33,7 @@ impl PySelfConsistent {
     fn sheet_densities<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.sheet_densities)
     }
+    /// Iterations to self-consistency.
     #[getter]
     fn iterations(&self) -> usize {
         self.inner.iterations
@@ -42,18 +43,36 @@ impl PySelfConsistent {
     fn residual<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         PyArray1::from_slice(py, &self.inner.residuals)
     }
-    /// Why the solution is special (e.g. the flat band of an undoped structure), else None.
+    /// Why the solution is special (the flat band of an undoped structure), else None.
     #[getter]
     fn note(&self) -> Option<String> {
         self.inner.note.clone()
     }
-    /// Total band edge E_c + field + electrostatic energy (meV) at z (nm).
+    /// Total band edge E_c + field + electrostatic energy (meV) at z (nm); V_xc excluded.
+    ///
+    /// Parameters
+    /// ----------
+    /// z : array_like
+    ///     Positions (nm, finite).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (len(z),)
     fn potential<'py>(&self, py: Python<'py>, z: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let z = vec_f64(z, "z", None)?;
         crate::error::check_finite("z", &z).py(py)?;
         Ok(PyArray1::from_vec(py, self.inner.potential(&z)))
     }
-    /// Electron density (cm⁻³) at z (nm).
+    /// Electron density n(z) = Σ_i N_i |ψ_i(z)|² (cm⁻³) at z (nm).
+    ///
+    /// Parameters
+    /// ----------
+    /// z : array_like
+    ///     Positions (nm, finite).
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (len(z),)
     fn density<'py>(&self, py: Python<'py>, z: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let z = vec_f64(z, "z", None)?;
         let n = self.inner.density(&z).py(py)?;
@@ -110,7 +129,35 @@ pub fn wrap(py: Python<'_>, s: Solution) -> PyResult<PySelfConsistent> {
     Ok(PySelfConsistent { inner: Arc::new(s) })
 }
 
-/// Schrödinger-Poisson for many structures in parallel, each started from its neighbour's potential.
+/// ``Heterostructure.self_consistent`` for many structures (a doping or gate sweep), in parallel.
+///
+/// Rayon threads with the GIL released: one contiguous chunk of the sequence per thread, each
+/// item started from the previous item's electrostatic potential (so neighbouring items
+/// should be similar structures).
+///
+/// Parameters
+/// ----------
+/// stacks : sequence of Heterostructure
+///     The structures, each with a permittivity on every layer.
+/// temperature : float
+///     K, > 0.
+/// fermi_level, surface_barrier, tol, max_iter, exchange_correlation, accuracy, mixing
+///     Keyword-only; as for ``Heterostructure.self_consistent`` (same defaults), applied to
+///     every structure.
+///
+/// Returns
+/// -------
+/// list of SelfConsistent
+///     One per structure, in order.
+///
+/// Raises
+/// ------
+/// TypeError
+///     An item is not a Heterostructure.
+/// ValueError
+///     As for ``Heterostructure.self_consistent``.
+/// ConvergenceError
+///     Some item did not converge within ``max_iter``.
 #[pyfunction]
 #[pyo3(signature = (stacks, temperature, *, fermi_level=None, surface_barrier=None, tol=1e-6, max_iter=100,
                     exchange_correlation=false, accuracy=1e-10, mixing=0.3))]
